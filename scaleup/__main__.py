@@ -1,0 +1,3 @@
+from scaleup.cli import main
+
+main()

@@ -1,0 +1,1 @@
+"""Command modules of the ``scaleup`` CLI, one per area, registered in :mod:`scaleup.cli`."""
