@@ -25,6 +25,9 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "run": ("scaleup.commands.records:run_group", "Add, list, show, edit pilot runs."),
     "import": ("scaleup.commands.transfer:import_command", "Import runs from CSV or XLSX."),
     "export": ("scaleup.commands.transfer:export_command", "Export runs to CSV or XLSX."),
+    "check": ("scaleup.commands.store:check_command", "Check a campaign file's integrity."),
+    "backup": ("scaleup.commands.store:backup_command", "Copy a campaign safely while in use."),
+    "undo": ("scaleup.commands.store:undo_command", "Undo your last change."),
 }
 
 
@@ -102,4 +105,10 @@ def main(argv: list[str] | None = None) -> None:
     except OSError as exc:
         click.echo(f"error: {exc.strerror or exc}: {exc.filename or ''}".rstrip(": "), err=True)
         sys.exit(2)
+    except Exception as exc:  # a bug of ours: say so plainly, keep the traceback on request
+        if os.environ.get("SCALEUP_DEBUG"):
+            raise
+        click.echo(f"internal error ({type(exc).__name__}: {exc}); nothing partial was written."
+                   " Set SCALEUP_DEBUG=1 to see the traceback and please report it.", err=True)
+        sys.exit(1)
     sys.exit(0)

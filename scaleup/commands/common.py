@@ -41,7 +41,11 @@ def print_table(rows: Iterable[Sequence[Any]], headers: Sequence[str], title: st
         table.add_column(h, overflow="fold")
     for r in rows:
         table.add_row(*["" if c is None else str(c) for c in r])
-    console = Console(highlight=False, soft_wrap=False)
+    import sys
+
+    # piped output is not wrapped to 80 columns: a file or a pager gets the whole table
+    console = Console(highlight=False, soft_wrap=False,
+                      width=None if sys.stdout.isatty() else 200)
     console.print(table)
     if footer:
         console.print(footer, markup=False)

@@ -1,0 +1,514 @@
+"""The service layer: one open campaign and the operations people do with it.
+
+The command line and the terminal app both call :class:`Campaign`, never the store, so both
+validate the same way and write the same audit trail. Values come in as people type them
+("600 rpm", "30 NL/min") or as SI numbers, and are validated against :mod:`scaleup.fields`
+before anything is written; a record with several bad fields reports all of them at once.
+"""
+
+from __future__ import annotations
+
+import getpass
+import os
+from pathlib import Path
+from typing import Any
+
+from scaleup import fields as F
+from scaleup.errors import InputError, MediumNotFound, RunNotFound, VesselNotFound
+from scaleup.store import db, records
+from scaleup.store.filters import compile_filter
+
+
+def _actor() -> str:
+    try:
+        return os.environ.get("SCALEUP_USER") or getpass.getuser()
+    except Exception:  # no user database in some containers
+        return "unknown"
+
+
+def validate(specs: tuple[F.Field, ...], values: dict[str, Any], *, partial: bool = False,
+             **context) -> dict[str, Any]:
+    """Check every field of a record; return {column: SI value} or raise listing all errors.
+
+    ``values`` may be keyed by column (``speed_rps``) or by label (``speed``); a number keyed
+    by its column is taken as SI, text is read with its unit. Unknown keys are refused by
+    name, so a typo is not silently dropped.
+    """
+    by_key = {s.column: s for s in specs} | {s.label: s for s in specs} | \
+        {s.label.replace(" ", "_"): s for s in specs} | \
+        {s.label.replace(" ", "-"): s for s in specs}
+    unknown = [k for k in values if k not in by_key]
+    if unknown:
+        raise InputError(f"unknown field(s) {', '.join(map(repr, unknown))}; known: "
+                         f"{', '.join(s.label for s in specs)}")
+    given = {by_key[k].column: v for k, v in values.items()}
+    # a number keyed by its column name (tank_diameter_m) is already SI
+    si_columns = {k for k, v in values.items() if k in by_key and k == by_key[k].column
+                  and isinstance(v, (int, float)) and not isinstance(v, bool)}
+    clean, problems = {}, []
+    for spec in specs:
+        if spec.column not in given:
+            if partial:
+                continue
+            if spec.required:
+                problems.append(f"{spec.label}: is required")
+                continue
+            if spec.default is not None:
+                clean[spec.column] = spec.default
+            continue
+        try:
+            clean[spec.column] = F.read(spec, given[spec.column], **dict(context),
+                                        si=spec.column in si_columns)
+        except InputError as exc:
+            problems.append(str(exc))
+    if problems:
+        raise InputError("; ".join(problems))
+    return clean
+
+
+def _basis(text: Any) -> str:
+    s = str(text).strip().lower()
+    if "vvm" in s:
+        return "vvm"
+    if "mol" in s:
+        return "molar"
+    if any(t in str(text) for t in ("NL", "Nm3", "Nm^3", "Nl")):
+        return "normal"
+    return "normal" if isinstance(text, (int, float)) else "actual"
+
+
+# TEMPORARY until scaleup.hydro.geometry lands: head volume / depth as fractions of T^3 / T
+_HEADS = {"flat": (0.0, 0.0), "elliptical": (3.14159265 / 24, 0.25),
+          "torispherical": (0.0809, 0.1935)}
+
+
+def liquid_volume(vessel: dict) -> float:
+    """Liquid volume [m3] of a stored vessel: the stored one, or from height and bottom."""
+    if vessel.get("working_volume_m3"):
+        return vessel["working_volume_m3"]
+    T, H = vessel["tank_diameter_m"], vessel["liquid_height_m"]
+    volume_fraction, depth_fraction = _HEADS[vessel.get("bottom_shape") or "flat"]
+    return volume_fraction * T**3 + 3.14159265 / 4 * T**2 * (H - depth_fraction * T)
+
+
+def liquid_height(vessel: dict) -> float:
+    """Liquid height [m] of a stored vessel: the stored one, or from volume and bottom."""
+    if vessel.get("liquid_height_m"):
+        return vessel["liquid_height_m"]
+    T, V = vessel["tank_diameter_m"], vessel["working_volume_m3"]
+    volume_fraction, depth_fraction = _HEADS[vessel.get("bottom_shape") or "flat"]
+    return depth_fraction * T + (V - volume_fraction * T**3) / (3.14159265 / 4 * T**2)
+
+
+class Campaign:
+    """An open campaign file.
+
+    Use as a context manager, or call :meth:`close`.
+    """
+
+    def __init__(self, path: str | os.PathLike, *, create: bool = False,
+                 actor: str | None = None):
+        self.path = Path(path)
+        self.conn = db.connect(self.path, create=create)
+        self.actor = actor or _actor()
+
+    @classmethod
+    def create(cls, path: str | os.PathLike) -> Campaign:
+        path = Path(path)
+        if path.exists() and path.stat().st_size > 0:
+            raise InputError(f"{path} already exists; choose another name", "path", str(path))
+        return cls(path, create=True)
+
+    def close(self) -> None:
+        self.conn.close()
+
+    def __enter__(self) -> Campaign:
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+    def transaction(self):
+        return records.transaction(self.conn)
+
+    def rows(self, sql: str, params: tuple | dict | list = ()) -> list[dict]:
+        return records.rows(self.conn, sql, tuple(params) if isinstance(params, list)
+                            else params)
+
+    # ---- vessels -------------------------------------------------------------------------
+    def add_vessel(self, values: dict[str, Any], impellers: list[dict] = (),
+                   sparger: dict | None = None) -> int:
+        """Add a vessel with its impellers (lowest first) and sparger; all or nothing."""
+        clean = validate(F.VESSEL, values)
+        if clean.get("liquid_height_m") is None and clean.get("working_volume_m3") is None:
+            raise InputError("give the liquid height or the working volume", "vessel")
+        clean = self._complete_geometry(clean)
+        clean_impellers = [validate(F.IMPELLER, imp) for imp in impellers]
+        self._check_impellers(clean, clean_impellers)
+        clean_sparger = validate(F.SPARGER, sparger) if sparger else None
+        with self.transaction():
+            vessel_id = records.insert(self.conn, "vessel", clean, actor=self.actor)
+            for position, imp in enumerate(clean_impellers, start=1):
+                records.insert(self.conn, "impeller", {**imp, "vessel_id": vessel_id,
+                                                       "position": position}, actor=self.actor)
+            if clean_sparger:
+                records.insert(self.conn, "sparger", {**clean_sparger, "vessel_id": vessel_id},
+                               actor=self.actor)
+        return vessel_id
+
+    def _complete_geometry(self, clean: dict) -> dict:
+        """Store both liquid height and volume so neither has to be recomputed on read."""
+        if clean.get("liquid_height_m") is None:
+            clean["liquid_height_m"] = liquid_height(clean)
+        if clean.get("working_volume_m3") is None:
+            clean["working_volume_m3"] = liquid_volume(clean)
+        return clean
+
+    @staticmethod
+    def _check_impellers(vessel: dict, impellers: list[dict]) -> None:
+        known = ("disc-turbine", "concave-disc-turbine", "pitched-blade-4", "pitched-blade-6",
+                 "hydrofoil-narrow", "hydrofoil-wide", "marine-propeller", "anchor",
+                 "helical-ribbon")  # TEMPORARY until scaleup.hydro.impellers lands
+        for i, imp in enumerate(impellers, start=1):
+            if imp["impeller_type"] not in known:
+                raise InputError(f'"{imp["impeller_type"]}" is not a known impeller type; '
+                                 f"known: {', '.join(known)}", f"impeller {i} type")
+            if imp["impeller_diameter_m"] >= vessel["tank_diameter_m"]:
+                raise InputError(f"{imp['impeller_diameter_m']:g} m is not smaller than the tank "
+                                 f"diameter {vessel['tank_diameter_m']:g} m",
+                                 f"impeller {i} diameter")
+            if imp["clearance_m"] >= vessel["liquid_height_m"]:
+                raise InputError(f"{imp['clearance_m']:g} m puts the impeller above the liquid "
+                                 f"(liquid height {vessel['liquid_height_m']:.3g} m)",
+                                 f"impeller {i} clearance")
+
+    def _vessel_row(self, key: str | int, *, include_deleted: bool = False) -> dict:
+        column = "id" if isinstance(key, int) or str(key).isdigit() else "name"
+        found = self.rows(f"SELECT * FROM vessel WHERE {column} = ?", (key,))
+        if not found or (found[0]["deleted_at"] and not include_deleted):
+            names = [r["name"] for r in self.rows(
+                "SELECT name FROM vessel WHERE deleted_at IS NULL ORDER BY name")]
+            raise VesselNotFound(f"no vessel {key!r}" + (" (it is deleted)" if found else "")
+                                 + f"; known vessels: {', '.join(names) or 'none'}")
+        return found[0]
+
+    def vessel(self, key: str | int, *, include_deleted: bool = False) -> dict:
+        """A vessel with its ``impellers`` (list, lowest first) and ``sparger`` (or None)."""
+        row = self._vessel_row(key, include_deleted=include_deleted)
+        row["impellers"] = self.rows("SELECT * FROM impeller WHERE vessel_id = ? ORDER BY "
+                                     "position", (row["id"],))
+        spargers = self.rows("SELECT * FROM sparger WHERE vessel_id = ?", (row["id"],))
+        row["sparger"] = spargers[0] if spargers else None
+        return row
+
+    def vessels(self, *, include_deleted: bool = False) -> list[dict]:
+        where = "" if include_deleted else "WHERE deleted_at IS NULL"
+        return [self.vessel(r["id"], include_deleted=True)
+                for r in self.rows(f"SELECT id FROM vessel {where} ORDER BY name")]
+
+    def edit_vessel(self, key: str | int, changes: dict[str, Any], *,
+                    expected_version: int | None = None) -> dict:
+        row = self._vessel_row(key)
+        clean = validate(F.VESSEL, changes, partial=True)
+        merged = {**row, **clean}
+        if "liquid_height_m" in clean and "working_volume_m3" not in clean:
+            merged["working_volume_m3"] = None
+            clean["working_volume_m3"] = liquid_volume(merged)
+        elif "working_volume_m3" in clean and "liquid_height_m" not in clean:
+            merged["liquid_height_m"] = None
+            clean["liquid_height_m"] = liquid_height(merged)
+        elif {"tank_diameter_m", "bottom_shape"} & set(clean):
+            merged["working_volume_m3"] = None
+            clean["working_volume_m3"] = liquid_volume(merged)
+        return records.update(self.conn, "vessel", row["id"], clean,
+                              expected_version=expected_version, actor=self.actor)
+
+    def delete_vessel(self, key: str | int) -> dict:
+        row = self._vessel_row(key)
+        live = self.rows("SELECT count(*) AS n FROM run WHERE vessel_id = ? AND deleted_at IS "
+                         "NULL", (row["id"],))[0]["n"]
+        if live:
+            raise InputError(f"vessel {row['name']} has {live} live run(s); delete them first",
+                             "vessel")
+        return records.soft_delete(self.conn, "vessel", row["id"], actor=self.actor)
+
+    def restore_vessel(self, key: str | int) -> dict:
+        row = self._vessel_row(key, include_deleted=True)
+        return records.restore(self.conn, "vessel", row["id"], actor=self.actor)
+
+    # ---- media ---------------------------------------------------------------------------
+    def add_medium(self, values: dict[str, Any], salts: dict[str, Any] | None = None) -> int:
+        """Add a medium; ``salts`` maps a salt (e.g. NaCl) to its concentration ("0.5 mol/L")."""
+        from scaleup import units
+
+        clean = validate(F.MEDIUM, values)
+        clean_salts = {}
+        for salt, conc in (salts or {}).items():
+            value = units.parse(conc, "concentration", f"salt {salt}")
+            if value < 0:
+                raise InputError(f'"{conc}" is negative', f"salt {salt}", conc)
+            clean_salts[salt.strip()] = value
+        with self.transaction():
+            medium_id = records.insert(self.conn, "medium", clean, actor=self.actor)
+            for salt, value in clean_salts.items():
+                records.insert(self.conn, "medium_salt", {"medium_id": medium_id, "salt": salt,
+                                                          "concentration_mol_m3": value},
+                               actor=self.actor)
+        return medium_id
+
+    def _medium_row(self, key: str | int, *, include_deleted: bool = False) -> dict:
+        column = "id" if isinstance(key, int) or str(key).isdigit() else "name"
+        found = self.rows(f"SELECT * FROM medium WHERE {column} = ?", (key,))
+        if not found or (found[0]["deleted_at"] and not include_deleted):
+            names = [r["name"] for r in self.rows(
+                "SELECT name FROM medium WHERE deleted_at IS NULL ORDER BY name")]
+            raise MediumNotFound(f"no medium {key!r}" + (" (it is deleted)" if found else "")
+                                 + f"; known media: {', '.join(names) or 'none'}")
+        return found[0]
+
+    def medium(self, key: str | int, *, include_deleted: bool = False) -> dict:
+        row = self._medium_row(key, include_deleted=include_deleted)
+        row["salts"] = {r["salt"]: r["concentration_mol_m3"] for r in self.rows(
+            "SELECT salt, concentration_mol_m3 FROM medium_salt WHERE medium_id = ? ORDER BY salt",
+            (row["id"],))}
+        return row
+
+    def media(self, *, include_deleted: bool = False) -> list[dict]:
+        where = "" if include_deleted else "WHERE deleted_at IS NULL"
+        return [self.medium(r["id"], include_deleted=True)
+                for r in self.rows(f"SELECT id FROM medium {where} ORDER BY name")]
+
+    def edit_medium(self, key: str | int, changes: dict[str, Any], *,
+                    expected_version: int | None = None) -> dict:
+        row = self._medium_row(key)
+        clean = validate(F.MEDIUM, changes, partial=True)
+        return records.update(self.conn, "medium", row["id"], clean,
+                              expected_version=expected_version, actor=self.actor)
+
+    def delete_medium(self, key: str | int) -> dict:
+        row = self._medium_row(key)
+        live = self.rows("SELECT count(*) AS n FROM run WHERE medium_id = ? AND deleted_at IS "
+                         "NULL", (row["id"],))[0]["n"]
+        if live:
+            raise InputError(f"medium {row['name']} has {live} live run(s); delete them first",
+                             "medium")
+        return records.soft_delete(self.conn, "medium", row["id"], actor=self.actor)
+
+    def restore_medium(self, key: str | int) -> dict:
+        row = self._medium_row(key, include_deleted=True)
+        return records.restore(self.conn, "medium", row["id"], actor=self.actor)
+
+    # ---- runs ----------------------------------------------------------------------------
+    def _clean_run(self, values: dict[str, Any], *, partial: bool = False,
+                   current: dict | None = None) -> dict:
+        values = dict(values)
+        vessel_key = values.get("vessel", current["vessel_id"] if current else None)
+        if vessel_key is None:
+            raise InputError("is required", "vessel")
+        vessel = self._vessel_row(vessel_key)
+        context = {"liquid_volume_m3": liquid_volume(vessel)}
+        gas_key = next((k for k in ("gas flow", "gas_flow", "gas-flow", "gas_flow_mol_s")
+                        if k in values), None)
+        temp_key = next((k for k in ("temperature", "temperature_k") if k in values), None)
+        if temp_key is not None and gas_key is not None:
+            from scaleup import units
+
+            try:
+                context["temperature_k"] = units.parse(values[temp_key], "temperature",
+                                                       "temperature")
+                context["pressure_pa"] = vessel["head_pressure_pa"]
+            except InputError:
+                pass  # reported with the other fields below
+        clean = validate(F.RUN, values, partial=partial, **context)
+        if "vessel" in clean:
+            clean["vessel_id"] = vessel["id"]
+            del clean["vessel"]
+        if "medium" in clean:
+            clean["medium_id"] = self._medium_row(clean.pop("medium"))["id"]
+        if gas_key is not None:
+            clean["gas_flow_basis"] = _basis(values[gas_key])
+        kla = clean.get("kla_per_s", current.get("kla_per_s") if current else None)
+        if kla is not None and not clean.get("kla_method") and not (current or {}).get(
+                "kla_method"):
+            clean["kla_method"] = "entered"
+        return clean
+
+    def add_run(self, values: dict[str, Any]) -> int:
+        """Add one run (vessel and medium by name); returns its id."""
+        clean = self._clean_run(values)
+        return records.insert(self.conn, "run", clean, actor=self.actor)
+
+    def run(self, run_id: int, *, include_deleted: bool = False) -> dict:
+        found = self.rows("SELECT r.*, v.name AS vessel, m.name AS medium FROM run r JOIN vessel "
+                          "v ON v.id = r.vessel_id JOIN medium m ON m.id = r.medium_id "
+                          "WHERE r.id = ?", (run_id,))
+        if not found or (found[0]["deleted_at"] and not include_deleted):
+            raise RunNotFound(f"no run {run_id}" + (" (it is deleted; `run restore` brings it "
+                                                    "back)" if found else ""))
+        return found[0]
+
+    def runs(self, where: str | None = None, *, order_by: str = "id", descending: bool = False,
+             limit: int | None = None, offset: int = 0) -> list[dict]:
+        """Live runs from the runs view, filtered by a safe filter expression."""
+        sql, params = self._runs_sql(where, order_by, descending)
+        if limit is not None:
+            sql += " LIMIT ? OFFSET ?"
+            params = [*params, int(limit), int(offset)]
+        return self.rows(sql, params)
+
+    def count_runs(self, where: str | None = None) -> int:
+        condition, params = compile_filter(where)
+        return self.rows(f"SELECT count(*) AS n FROM run_view WHERE {condition}", params)[0]["n"]
+
+    @staticmethod
+    def _runs_sql(where, order_by, descending):
+        from scaleup.store.filters import ALIASES, COLUMNS
+
+        condition, params = compile_filter(where)
+        column = ALIASES.get(order_by, order_by)
+        if column not in COLUMNS:
+            raise InputError(f'cannot sort by "{order_by}"; columns: {", ".join(COLUMNS)}',
+                             "sort")
+        direction = "DESC" if descending else "ASC"
+        return (f"SELECT * FROM run_view WHERE {condition} ORDER BY {column} {direction}, id",
+                params)
+
+    def edit_run(self, run_id: int, changes: dict[str, Any], *,
+                 expected_version: int | None = None) -> dict:
+        current = self.run(run_id)
+        clean = self._clean_run(changes, partial=True, current=current)
+        return records.update(self.conn, "run", run_id, clean,
+                              expected_version=expected_version, actor=self.actor)
+
+    def delete_run(self, run_id: int) -> dict:
+        self.run(run_id)
+        return records.soft_delete(self.conn, "run", run_id, actor=self.actor)
+
+    def restore_run(self, run_id: int) -> dict:
+        self.run(run_id, include_deleted=True)
+        return records.restore(self.conn, "run", run_id, actor=self.actor)
+
+    # ---- curves --------------------------------------------------------------------------
+    def add_curve(self, run_id: int, time_s, do_values, do_unit: str, *,
+                  kind: str = "gassing-out", probe_tau_s: float | None = None,
+                  gas_on_s: float | None = None, notes: str = "") -> int:
+        """Store a DO curve of a run as measured (samples as float64 arrays)."""
+        import numpy as np
+
+        self.run(run_id)
+        t = np.ascontiguousarray(time_s, dtype="<f8")
+        c = np.ascontiguousarray(do_values, dtype="<f8")
+        if t.shape != c.shape or t.ndim != 1:
+            raise InputError(f"time ({t.size}) and DO ({c.size}) need the same number of "
+                             "samples", "curve")
+        if do_unit not in ("mol/m3", "mg/L", "%"):
+            raise InputError(f'"{do_unit}" is not one of mol/m3, mg/L, %', "DO unit")
+        return records.insert(self.conn, "curve", {
+            "run_id": run_id, "kind": kind, "n_samples": int(t.size), "time_s": t.tobytes(),
+            "do_values": c.tobytes(), "do_unit": do_unit, "probe_tau_s": probe_tau_s,
+            "gas_on_s": gas_on_s, "notes": notes}, actor=self.actor)
+
+    def curve(self, curve_id: int) -> dict:
+        """A stored curve with its samples as numpy arrays ``time_s`` and ``do_values``."""
+        import numpy as np
+
+        row = records.get(self.conn, "curve", curve_id)
+        row["time_s"] = np.frombuffer(row["time_s"], dtype="<f8")
+        row["do_values"] = np.frombuffer(row["do_values"], dtype="<f8")
+        return row
+
+    def curves(self, run_id: int | None = None) -> list[dict]:
+        """Curves (without samples) of one run, or of the whole campaign."""
+        sql = ("SELECT id, run_id, kind, n_samples, do_unit, probe_tau_s, gas_on_s, window_low, "
+               "window_high, fit_method, kla_per_s, kla_stderr_per_s, analysed_at FROM curve "
+               "WHERE deleted_at IS NULL")
+        if run_id is not None:
+            return self.rows(sql + " AND run_id = ? ORDER BY id", (run_id,))
+        return self.rows(sql + " ORDER BY id")
+
+    # ---- flux measurements ---------------------------------------------------------------
+    def add_flux(self, values: dict[str, Any], run_id: int | None = None) -> int:
+        """Store one mass-flux measurement (solute, area, flux, concentrations, length, velocity)."""
+        clean = validate(F.FLUX, values)
+        if clean["c_interface_mol_m3"] == clean["c_bulk_mol_m3"]:
+            raise InputError("the interface and bulk concentrations are equal: no driving "
+                             "force, so no mass-transfer coefficient", "bulk concentration")
+        if run_id is not None:
+            self.run(run_id)
+            clean["run_id"] = run_id
+        return records.insert(self.conn, "flux", clean, actor=self.actor)
+
+    def fluxes(self) -> list[dict]:
+        return self.rows("SELECT * FROM flux WHERE deleted_at IS NULL ORDER BY id")
+
+    # ---- files ---------------------------------------------------------------------------
+    def import_runs(self, path, **options) -> dict:
+        from scaleup.store.importers import import_runs
+
+        return import_runs(self, path, **options)
+
+    def export_runs(self, path, where: str | None = None, *, si: bool = False) -> int:
+        from scaleup.store.exporters import export_runs
+
+        return export_runs(self, path, where, si=si)
+
+    def load_demo(self) -> dict:
+        """Fill an empty campaign with the invented demo campaign shipped with the package."""
+        from scaleup.store.demo import load_demo
+
+        return load_demo(self)
+
+    # ---- history -------------------------------------------------------------------------
+    def history(self, table: str | None = None, record_id: int | None = None,
+                limit: int = 50) -> list[dict]:
+        sql, params = "SELECT * FROM audit_log WHERE 1", []
+        if table:
+            sql += " AND table_name = ?"
+            params.append(table)
+        if record_id is not None:
+            sql += " AND record_id = ?"
+            params.append(record_id)
+        return self.rows(sql + " ORDER BY id DESC LIMIT ?", [*params, limit])
+
+    def undo(self) -> dict:
+        """Undo the newest change made by this user: an edit, a delete, a restore or an add."""
+        import json
+
+        last = records.last_change(self.conn, self.actor)
+        if last is None:
+            raise InputError("there is nothing to undo")
+        table, record_id, action = last["table_name"], last["record_id"], last["action"]
+        with self.transaction():
+            if action == "update":
+                old = json.loads(last["old_json"])
+                editable = {k: v for k, v in old.items()
+                            if k not in ("id", "row_version", "created_at", "updated_at",
+                                         "deleted_at")}
+                records.update(self.conn, table, record_id, editable, actor=self.actor)
+            elif action == "delete":
+                records.restore(self.conn, table, record_id, actor=self.actor)
+            elif action == "restore":
+                records.soft_delete(self.conn, table, record_id, actor=self.actor)
+            elif action == "insert" and table in records.VERSIONED:
+                records.soft_delete(self.conn, table, record_id, actor=self.actor)
+            else:
+                raise InputError(f"the last change ({action} of {table} {record_id}) cannot be "
+                                 "undone here")
+        return {"table": table, "record_id": record_id, "undid": action}
+
+    # ---- overview ------------------------------------------------------------------------
+    def summary(self) -> dict:
+        count = lambda t: self.rows(f"SELECT count(*) AS n FROM {t} WHERE deleted_at IS NULL")[0]["n"]  # noqa: E731
+        return {"path": str(self.path), "schema_version": db.schema_version(),
+                "vessels": count("vessel"), "media": count("medium"), "runs": count("run"),
+                "curves": count("curve"), "fluxes": count("flux"), "fits": count("fit"),
+                "studies": count("study")}
+
+    def check(self) -> dict:
+        return db.check(self.conn)
+
+    def backup(self, target: str | os.PathLike) -> Path:
+        target = Path(target)
+        if target.exists():
+            raise InputError(f"{target} already exists; choose a new file name", "backup")
+        return db.backup(self.conn, target)
