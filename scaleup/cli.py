@@ -28,6 +28,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "check": ("scaleup.commands.store:check_command", "Check a campaign file's integrity."),
     "backup": ("scaleup.commands.store:backup_command", "Copy a campaign safely while in use."),
     "undo": ("scaleup.commands.store:undo_command", "Undo your last change."),
+    "power": ("scaleup.commands.power:power_command", "Power, gassed power, regime, blend time."),
 }
 
 

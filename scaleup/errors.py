@@ -39,7 +39,7 @@ class OutOfRange(InputError):
     """A value is outside the range that is physically possible or that a method covers."""
 
 
-class NotFound(ScaleupError, LookupError):
+class NotFound(InputError, LookupError):
     """A record asked for by id or name does not exist (or is deleted)."""
 
 

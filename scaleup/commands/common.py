@@ -35,12 +35,14 @@ def print_table(rows: Iterable[Sequence[Any]], headers: Sequence[str], title: st
     """Print a readable table (rich) with the given headers; cells are strings already."""
     from rich.console import Console
     from rich.table import Table
+    from rich.text import Text
 
-    table = Table(title=title, show_lines=False, header_style="bold")
+    # cells are plain text: "speed [rpm]" must not be read as rich markup
+    table = Table(title=Text(title) if title else None, show_lines=False, header_style="bold")
     for h in headers:
-        table.add_column(h, overflow="fold")
+        table.add_column(Text(h), overflow="fold")
     for r in rows:
-        table.add_row(*["" if c is None else str(c) for c in r])
+        table.add_row(*[Text("" if c is None else str(c)) for c in r])
     import sys
 
     # piped output is not wrapped to 80 columns: a file or a pager gets the whole table

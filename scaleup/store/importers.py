@@ -123,7 +123,7 @@ def match_columns(table: Table, specs: tuple[F.Field, ...],
     for s in specs:
         if s.required and s.column not in present:
             problems.append({"row": 1, "column": s.label, "value": None,
-                             "reason": f"required column is missing; expected columns: "
+                             "reason": "required column is missing; expected columns: "
                                        + ", ".join(s.label for s in specs)})
     if problems:
         raise ImportRejected(problems, table.source)
