@@ -77,27 +77,24 @@ def _basis(text: Any) -> str:
     return "normal" if isinstance(text, (int, float)) else "actual"
 
 
-# TEMPORARY until scaleup.hydro.geometry lands: head volume / depth as fractions of T^3 / T
-_HEADS = {"flat": (0.0, 0.0), "elliptical": (3.14159265 / 24, 0.25),
-          "torispherical": (0.0809, 0.1935)}
-
-
 def liquid_volume(vessel: dict) -> float:
     """Liquid volume [m3] of a stored vessel: the stored one, or from height and bottom."""
+    from scaleup.conditions import volume_for_height
+
     if vessel.get("working_volume_m3"):
         return vessel["working_volume_m3"]
-    T, H = vessel["tank_diameter_m"], vessel["liquid_height_m"]
-    volume_fraction, depth_fraction = _HEADS[vessel.get("bottom_shape") or "flat"]
-    return volume_fraction * T**3 + 3.14159265 / 4 * T**2 * (H - depth_fraction * T)
+    return volume_for_height(vessel["tank_diameter_m"], vessel["liquid_height_m"],
+                             vessel.get("bottom_shape") or "flat")
 
 
 def liquid_height(vessel: dict) -> float:
     """Liquid height [m] of a stored vessel: the stored one, or from volume and bottom."""
+    from scaleup.conditions import height_for_volume
+
     if vessel.get("liquid_height_m"):
         return vessel["liquid_height_m"]
-    T, V = vessel["tank_diameter_m"], vessel["working_volume_m3"]
-    volume_fraction, depth_fraction = _HEADS[vessel.get("bottom_shape") or "flat"]
-    return depth_fraction * T + (V - volume_fraction * T**3) / (3.14159265 / 4 * T**2)
+    return height_for_volume(vessel["tank_diameter_m"], vessel["working_volume_m3"],
+                             vessel.get("bottom_shape") or "flat")
 
 
 class Campaign:
@@ -166,9 +163,9 @@ class Campaign:
 
     @staticmethod
     def _check_impellers(vessel: dict, impellers: list[dict]) -> None:
-        known = ("disc-turbine", "concave-disc-turbine", "pitched-blade-4", "pitched-blade-6",
-                 "hydrofoil-narrow", "hydrofoil-wide", "marine-propeller", "anchor",
-                 "helical-ribbon")  # TEMPORARY until scaleup.hydro.impellers lands
+        from scaleup.hydro.impellers import impeller_types
+
+        known = impeller_types()
         for i, imp in enumerate(impellers, start=1):
             if imp["impeller_type"] not in known:
                 raise InputError(f'"{imp["impeller_type"]}" is not a known impeller type; '
@@ -235,6 +232,12 @@ class Campaign:
     def restore_vessel(self, key: str | int) -> dict:
         row = self._vessel_row(key, include_deleted=True)
         return records.restore(self.conn, "vessel", row["id"], actor=self.actor)
+
+    def vessel_geometry(self, key: str | int):
+        """The stored vessel as a hydro :class:`~scaleup.hydro.geometry.Vessel`."""
+        from scaleup.conditions import vessel_from_row
+
+        return vessel_from_row(self.vessel(key, include_deleted=True))
 
     # ---- media ---------------------------------------------------------------------------
     def add_medium(self, values: dict[str, Any], salts: dict[str, Any] | None = None) -> int:
@@ -387,6 +390,29 @@ class Campaign:
     def restore_run(self, run_id: int) -> dict:
         self.run(run_id, include_deleted=True)
         return records.restore(self.conn, "run", run_id, actor=self.actor)
+
+    def run_conditions(self, run_id: int, **options):
+        """The run with its vessel, liquid properties and operating point (P/V, Pg/V, us,
+        regime, blend time ...): a :class:`scaleup.conditions.RunConditions`."""
+        from scaleup.conditions import run_conditions
+
+        run = self.run(run_id, include_deleted=True)
+        return run_conditions(run, self.vessel(run["vessel_id"], include_deleted=True),
+                              self.medium(run["medium_id"], include_deleted=True), **options)
+
+    def runs_derived(self, where: str | None = None, **options) -> list[dict]:
+        """Runs of the runs view with their derived hydrodynamics (``power_per_volume_w_m3``,
+        ``gassed_power_per_volume_w_m3``, ``superficial_gas_velocity_m_s``, ``vvm``,
+        ``flow_number``, ``regime``, ``tip_speed_m_s``, ``blend_time_95_s``, ...)."""
+        from scaleup.conditions import derived_table
+
+        runs = self.rows("SELECT r.*, v.name AS vessel, m.name AS medium, m.coalescence AS "
+                         "coalescence FROM run r JOIN vessel v ON v.id = r.vessel_id JOIN medium m"
+                         " ON m.id = r.medium_id WHERE r.id IN (SELECT id FROM run_view WHERE "
+                         f"{compile_filter(where)[0]}) ORDER BY r.id", compile_filter(where)[1])
+        vessels = {v["id"]: v for v in self.vessels(include_deleted=True)}
+        media = {m["id"]: m for m in self.media(include_deleted=True)}
+        return derived_table(runs, vessels, media, **options)
 
     # ---- curves --------------------------------------------------------------------------
     def add_curve(self, run_id: int, time_s, do_values, do_unit: str, *,
