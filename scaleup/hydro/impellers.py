@@ -1,0 +1,220 @@
+"""The impeller catalogue: generic impeller types and their published characteristics.
+
+Data, not code. Each entry holds, for the standard geometry of its type in a vessel with four
+wall baffles of T/10 (unbaffled for the close-clearance types):
+
+* ``power_number``: turbulent power number Np = P / (rho N^3 D^5) and the published range;
+* ``kp``: laminar constant, Np = Kp / Re for Re below ``re_laminar``;
+* ``re_turbulent``: Reynolds number above which Np is taken as constant;
+* ``flow_number``: pumping number Nq = Q_pumped / (N D^3), where published;
+* ``gassed``: which gassed-power model applies, and for the per-type linear model
+  Pg/P = max(floor, 1 - slope Fl) its slope and floor;
+* ``flooding``: whether the disc-turbine flooding correlation of Nienow et al. (1985) was
+  established for this type ("valid"), is conservative for it ("conservative"), or does not
+  apply ("outside").
+
+``sources`` names the origin of every number. Values marked "from memory" were recalled from
+the cited handbook or paper and not re-read; "common practice, no source" marks a rule of
+thumb. A power number measured for a particular impeller (``Impeller.power_number``) always
+overrides the catalogue.
+
+Types are named generically (rule 1 of the project): no brand or model names.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from scaleup.errors import InputError
+
+HANDBOOK = ("Paul, Atiemo-Obeng & Kresta (eds.), Handbook of Industrial Mixing, Wiley 2004, "
+            "ch. 6 (Hemrajani & Tatterson), typical values")
+
+
+@dataclass(frozen=True)
+class ImpellerType:
+    """Characteristics of one generic impeller type (see the module docstring)."""
+
+    id: str
+    description: str
+    flow: str  # "radial", "axial", "mixed" or "close-clearance"
+    blades: int
+    blade_width_ratio: float  # W / D [-]
+    power_number: float  # turbulent Np [-]
+    power_number_range: tuple[float, float]
+    kp: float  # laminar Np * Re [-]
+    re_laminar: float  # [-]
+    re_turbulent: float  # [-]
+    flow_number: float | None  # Nq [-]
+    gassed: str  # "Cui" or "linear" or "none"
+    gassed_slope: float  # per-type linear model: Pg/P = max(floor, 1 - slope * Fl)
+    gassed_floor: float
+    flooding: str  # "valid", "conservative" or "outside"
+    sources: dict
+
+
+CATALOGUE: dict[str, ImpellerType] = {t.id: t for t in (
+    ImpellerType(
+        id="disc-turbine",
+        description="six-blade flat-blade disc turbine, W/D = 0.2",
+        flow="radial", blades=6, blade_width_ratio=0.2,
+        power_number=5.0, power_number_range=(4.6, 6.3), kp=70.0,
+        re_laminar=10.0, re_turbulent=1.0e4, flow_number=0.72,
+        gassed="Cui", gassed_slope=0.0, gassed_floor=0.0, flooding="valid",
+        sources={
+            "power_number": "Bujalski, Nienow, Chatwin & Cooke (1987), Chem. Eng. Sci. 42, "
+                            "317: Np 4.6-6.3 with disc thickness and scale; 5.0 typical",
+            "kp": "Bates, Fondy & Corpstein (1963), Ind. Eng. Chem. Process Des. Dev. 2, 310 "
+                  "(from memory)",
+            "flow_number": HANDBOOK + " (from memory)",
+            "gassed": "Cui, van der Lans & Luyben (1996), Chem. Eng. Sci. 51, 2631",
+            "flooding": "Nienow, Warmoeskerken, Smith & Konno (1985), Proc. 5th Eur. Conf. "
+                        "Mixing, 143",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="concave-disc-turbine",
+        description="six-blade concave (hollow-blade) disc turbine",
+        flow="radial", blades=6, blade_width_ratio=0.2,
+        power_number=3.2, power_number_range=(2.8, 4.4), kp=70.0,
+        re_laminar=10.0, re_turbulent=1.0e4, flow_number=None,
+        gassed="linear", gassed_slope=2.5, gassed_floor=0.70, flooding="conservative",
+        sources={
+            "power_number": "Warmoeskerken & Smith (1989), Chem. Eng. Res. Des. 67, 193; "
+                            "Nienow (1998), Appl. Mech. Rev. 51, 3 (from memory)",
+            "kp": "assumed equal to the flat-blade disc turbine (no source)",
+            "gassed": "Nienow (1998), Appl. Mech. Rev. 51, 3: Pg/P stays about 0.7-0.9 up to "
+                      "high flow numbers (from memory; linear fit is ours)",
+            "flooding": "concave blades flood at a higher gas flow than flat blades; the "
+                        "disc-turbine limit is conservative (Nienow 1998, from memory)",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="pitched-blade-4",
+        description="four-blade 45-degree pitched-blade turbine, down-pumping, W/D = 0.2",
+        flow="mixed", blades=4, blade_width_ratio=0.2,
+        power_number=1.27, power_number_range=(1.1, 1.5), kp=44.0,
+        re_laminar=10.0, re_turbulent=1.0e4, flow_number=0.79,
+        gassed="linear", gassed_slope=8.0, gassed_floor=0.55, flooding="outside",
+        sources={
+            "power_number": HANDBOOK + ", D/T = 1/3 (from memory)",
+            "flow_number": HANDBOOK + " (from memory)",
+            "kp": HANDBOOK + " (from memory)",
+            "gassed": "Bujalski, Konno & Nienow (1988), Proc. 6th Eur. Conf. Mixing, 389: "
+                      "down-pumping pitched blades fall to about 0.5-0.6 of ungassed power "
+                      "(from memory; linear fit is ours)",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="pitched-blade-6",
+        description="six-blade 45-degree pitched-blade turbine, down-pumping, W/D = 0.2",
+        flow="mixed", blades=6, blade_width_ratio=0.2,
+        power_number=1.7, power_number_range=(1.5, 1.9), kp=50.0,
+        re_laminar=10.0, re_turbulent=1.0e4, flow_number=0.85,
+        gassed="linear", gassed_slope=8.0, gassed_floor=0.55, flooding="outside",
+        sources={
+            "power_number": "Harriott, Chemical Reactor Design (2003), Example 7.6 uses 1.7; "
+                            + HANDBOOK + " (from memory)",
+            "flow_number": HANDBOOK + " (from memory)",
+            "kp": HANDBOOK + " (from memory)",
+            "gassed": "as pitched-blade-4 (Bujalski, Konno & Nienow 1988, from memory)",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="hydrofoil-narrow",
+        description="three-blade narrow-blade hydrofoil, down-pumping",
+        flow="axial", blades=3, blade_width_ratio=0.15,
+        power_number=0.30, power_number_range=(0.27, 0.34), kp=40.0,
+        re_laminar=10.0, re_turbulent=1.0e4, flow_number=0.56,
+        gassed="linear", gassed_slope=10.0, gassed_floor=0.50, flooding="outside",
+        sources={
+            "power_number": HANDBOOK + " (from memory)",
+            "flow_number": HANDBOOK + " (from memory)",
+            "kp": "approximate, hydrofoils are not used for viscous work (no source)",
+            "gassed": "narrow hydrofoils are poor gas dispersers; Nienow (1998), Appl. Mech. "
+                      "Rev. 51, 3 (from memory; linear fit is ours)",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="hydrofoil-wide",
+        description="four-blade wide-blade (high-solidity) hydrofoil, down-pumping",
+        flow="axial", blades=4, blade_width_ratio=0.35,
+        power_number=0.85, power_number_range=(0.75, 1.1), kp=60.0,
+        re_laminar=10.0, re_turbulent=1.0e4, flow_number=0.73,
+        gassed="linear", gassed_slope=6.0, gassed_floor=0.60, flooding="outside",
+        sources={
+            "power_number": HANDBOOK + " (from memory)",
+            "flow_number": HANDBOOK + " (from memory)",
+            "kp": "approximate (no source)",
+            "gassed": "Nienow (1998), Appl. Mech. Rev. 51, 3: down-pumping wide hydrofoils "
+                      "lose about 40 % of their power when gassed (from memory; linear fit "
+                      "is ours)",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="marine-propeller",
+        description="three-blade marine propeller, pitch = D",
+        flow="axial", blades=3, blade_width_ratio=0.2,
+        power_number=0.35, power_number_range=(0.32, 0.40), kp=41.0,
+        re_laminar=10.0, re_turbulent=1.0e4, flow_number=0.5,
+        gassed="linear", gassed_slope=10.0, gassed_floor=0.50, flooding="outside",
+        sources={
+            "power_number": "Rushton, Costich & Everett (1950), Chem. Eng. Prog. 46, 395 and "
+                            "467, baffled, pitch 1 (from memory)",
+            "kp": "Rushton, Costich & Everett (1950) (from memory)",
+            "flow_number": HANDBOOK + " (from memory)",
+            "gassed": "no published set found; treated like the narrow hydrofoil (no source)",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="anchor",
+        description="anchor, close wall clearance, for viscous media (unbaffled)",
+        flow="close-clearance", blades=2, blade_width_ratio=0.1,
+        power_number=0.35, power_number_range=(0.3, 0.5), kp=300.0,
+        re_laminar=30.0, re_turbulent=1.0e4, flow_number=None,
+        gassed="none", gassed_slope=0.0, gassed_floor=1.0, flooding="outside",
+        sources={
+            "kp": "Beckner & Smith (1966), Trans. Inst. Chem. Eng. 44, T224: Kp about 300 "
+                  "for a wall gap of about 0.05 D (from memory)",
+            "power_number": "approximate unbaffled plateau; close-clearance impellers are not "
+                            "run turbulent (common practice, no source)",
+            "gassed": "no published set: Pg = P assumed",
+            "re_limits": "common practice, no source",
+        }),
+    ImpellerType(
+        id="helical-ribbon",
+        description="double helical ribbon, D/T = 0.95, pitch = D, W/D = 0.1 (unbaffled)",
+        flow="close-clearance", blades=2, blade_width_ratio=0.1,
+        power_number=0.35, power_number_range=(0.3, 0.5), kp=357.4,
+        re_laminar=30.0, re_turbulent=1.0e4, flow_number=None,
+        gassed="none", gassed_slope=0.0, gassed_floor=1.0, flooding="outside",
+        sources={
+            "kp": "Rieger, Novak & Havelkova (1988), Int. Chem. Eng. 28, 376: "
+                  "Kp = 82.8 (h/D)(c/D)^-0.38 (s/D)^-0.35 (w/D)^0.2 nb^0.78 for the "
+                  "standard geometry",
+            "power_number": "approximate unbaffled plateau; close-clearance impellers are not "
+                            "run turbulent (common practice, no source)",
+            "gassed": "no published set: Pg = P assumed",
+            "re_limits": "common practice, no source",
+        }),
+)}
+
+
+def impeller_types() -> list[str]:
+    """The catalogue's type ids, in catalogue order."""
+    return list(CATALOGUE)
+
+
+def impeller_type(type_id: str) -> ImpellerType:
+    """The catalogue entry for a type id; an :class:`InputError` lists the known ids.
+
+    Examples
+    --------
+    >>> impeller_type("disc-turbine").power_number
+    5.0
+    """
+    try:
+        return CATALOGUE[type_id]
+    except (KeyError, TypeError):
+        raise InputError(f"unknown impeller type {type_id!r}; known types: "
+                         f"{', '.join(CATALOGUE)}", "impeller", type_id) from None
