@@ -1,0 +1,565 @@
+"""kLa from gassing-out curves: the nonlinear fit, probe lag, windowing and the log-linear method.
+
+A dissolved-oxygen (DO) curve recorded after the gas is switched on follows
+
+.. math::
+    C(t) = C_\\infty - (C_\\infty - C_0)\\, e^{-k_La (t - t_0)}
+
+and a first-order probe with time constant :math:`\\tau_p` shows it as
+
+.. math::
+    C_p(t) = C_\\infty - (C_\\infty - C_0)
+             \\frac{e^{-k_La t} - k_La \\tau_p e^{-t/\\tau_p}}{1 - k_La \\tau_p}
+
+(time from :math:`t_0`). kLa, :math:`C_\\infty` and :math:`C_0` are fitted together by
+nonlinear least squares, the approach of the ASCE/EWRI 2-06 clean-water standard [1]_; the
+lagged model is the classic two-first-order-lags result (van't Riet [2]_). The log-linear
+method (a straight line through ln(C* - C)) is reported beside it because it is what most
+spreadsheets did before.
+
+Concentrations may be in any unit (% saturation, mg/L, mol/m3): the model is linear in them,
+so kLa does not depend on the unit, and C_inf and C0 come back in the unit of the data.
+
+Defaults, stated once
+---------------------
+* Window: samples whose fitted probe reading lies between 20 % and 98 % of the rise
+  (C - C0)/(C_inf - C0) are fitted; ASCE/EWRI 2-06 truncates DO data below about 20 % and above
+  98 % of saturation (from memory). The window is found from the fit itself and iterated.
+* Start: the last sample still at the initial level before the signal leaves it (to within
+  the noise). A logged gas-on time (``start_s``) is better, above all for the lag model, which
+  assumes the probe was at equilibrium at that instant.
+* Probe lag warning when an uncorrected fit on the same samples would read more than 2 % off
+  (common practice, no source).
+
+References
+----------
+.. [1] ASCE/EWRI 2-06, Measurement of Oxygen Transfer in Clean Water. American Society of
+   Civil Engineers, Reston VA, 2007.
+.. [2] van't Riet, K. "Review of measuring methods and results in nonviscous gas-liquid mass
+   transfer in stirred vessels." Ind. Eng. Chem. Process Des. Dev. 18 (1979) 357-364.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from scaleup.errors import InputError
+from scaleup.measure import expfit
+from scaleup.measure.curve_checks import MIN_POINTS, Prepared, Rejected, detect_start, prepare
+
+__all__ = ["DEFAULT_WINDOW", "CURVE_METHODS", "CurveRejected", "Rejected", "CurveFit",
+           "CurveAnalysis", "ProbeStep", "analyse_curve", "analyse_curves", "curve_methods",
+           "detect_start", "fit_probe_step", "lag_bias"]
+
+DEFAULT_WINDOW = (0.2, 0.98)
+LAG_BIAS_WARNING = 0.02
+CURVE_METHODS = {
+    "nonlinear": "kLa, C_inf and C0 fitted together by nonlinear least squares (ASCE/EWRI 2-06), "
+                 "with the probe-lag model when a probe time constant is given",
+    "log-linear": "straight line through ln(C_inf - C) against time, C_inf taken as C* if "
+                  "given, else the mean of the last samples; no lag correction",
+}
+_CHUNK_CURVES = 64  # curves per progress step in a batch
+
+
+class CurveRejected(InputError):
+    """A curve that cannot give a kLa; ``code`` names the condition, the message says why."""
+
+    def __init__(self, reason: str, code: str):
+        self.code = code
+        self.reason = reason
+        super().__init__(reason, "curve")
+
+
+@dataclass(frozen=True, eq=False)
+class CurveFit:
+    """One method's estimate from one curve.
+
+    Concentrations (``c_inf``, ``c0``, ``rmse``, ``residuals``) are in the unit of the data;
+    ``start_s`` and ``window_s`` are on the clock of the data [s]; ``r_squared`` and
+    ``durbin_watson`` are computed from the concentration residuals for either method.
+    ``covariance`` (nonlinear only) is the 3 x 3 covariance of (c_inf, c0, kla).
+    """
+
+    method: str
+    kla_per_s: float
+    kla_stderr_per_s: float
+    kla_ci95_per_s: tuple[float, float]
+    c_inf: float
+    c_inf_stderr: float
+    c0: float
+    c0_stderr: float
+    start_s: float
+    window_s: tuple[float, float]
+    tau_p_s: float
+    n_points: int
+    rmse: float
+    r_squared: float
+    durbin_watson: float
+    times_s: np.ndarray = field(repr=False)
+    residuals: np.ndarray = field(repr=False)
+    covariance: np.ndarray | None = field(default=None, repr=False)
+
+
+@dataclass(frozen=True, eq=False)
+class CurveAnalysis:
+    """Both methods on one curve; ``primary`` is the one asked for.
+
+    ``lag_bias`` is the relative error an uncorrected (ideal-probe) fit would make on the same
+    samples (-0.08 reads 8 % low), or None without a probe time constant.
+    """
+
+    method: str
+    nonlinear: CurveFit | None
+    log_linear: CurveFit | None
+    lag_bias: float | None
+    start_detected: bool
+    warnings: tuple[str, ...]
+
+    @property
+    def primary(self) -> CurveFit:
+        fit = self.nonlinear if self.method == "nonlinear" else self.log_linear
+        assert fit is not None  # a curve whose primary method fails is rejected instead
+        return fit
+
+
+@dataclass(frozen=True)
+class ProbeStep:
+    """Probe time constant fitted from a step test (probe moved into saturated liquid)."""
+
+    tau_p_s: float
+    tau_p_stderr_s: float
+    n_points: int
+    warnings: tuple[str, ...]
+
+
+def curve_methods() -> list[str]:
+    """Names of the curve-fitting methods, for pick-lists and ``--method``."""
+    return list(CURVE_METHODS)
+
+
+def analyse_curve(t_s: Sequence[float] | np.ndarray, c: Sequence[float] | np.ndarray, *,
+                  tau_p_s: float = 0.0, window: tuple[float, float] = DEFAULT_WINDOW,
+                  start_s: float | None = None, method: str = "nonlinear",
+                  c_star: float | None = None) -> CurveAnalysis:
+    """kLa from one gassing-out curve by the nonlinear fit, with the log-linear method beside it.
+
+    Parameters
+    ----------
+    t_s : array
+        Sample times [s], increasing; NaN rows are skipped.
+    c : array
+        DO readings [any unit: %, mg/L or mol/m3]; NaN is a gap.
+    tau_p_s : float
+        First-order probe time constant [s]; 0 fits an ideal probe.
+    window : (float, float)
+        Fractions of the rise [-] whose samples are fitted (default 0.2 to 0.98).
+    start_s : float, optional
+        Gas-on time [s] on the clock of ``t_s``; detected when not given.
+    method : str
+        ``"nonlinear"`` or ``"log-linear"``: which estimate is primary.
+    c_star : float, optional
+        Saturation concentration [unit of ``c``]: C_inf of the log-linear method and the
+        level above which a flat curve counts as saturated.
+
+    Returns
+    -------
+    CurveAnalysis
+        Both estimates, the lag bias and warnings.
+
+    Raises
+    ------
+    CurveRejected
+        When the curve cannot give a kLa (flat, too short, all NaN, saturated, time not
+        increasing, no convergence); the message says which and why.
+
+    Examples
+    --------
+    A noise-free curve with kLa = 0.02 1/s seen through an 8 s probe, recovered exactly:
+
+    >>> t = np.arange(0.0, 400.0, 1.0)
+    >>> g = (np.exp(-0.02 * t) - 0.16 * np.exp(-t / 8.0)) / (1 - 0.16)
+    >>> res = analyse_curve(t, 100.0 - 95.0 * g, tau_p_s=8.0, start_s=0.0)
+    >>> round(res.primary.kla_per_s, 8), round(res.lag_bias, 4)
+    (0.02, -0.0178)
+    """
+    result = analyse_curves([(t_s, c)], tau_p_s=tau_p_s, window=window, start_s=start_s,
+                            method=method, c_star=c_star)[0]
+    if isinstance(result, Rejected):
+        raise CurveRejected(result.reason, result.code)
+    return result
+
+
+def analyse_curves(curves: Sequence[tuple[np.ndarray, np.ndarray]], *,
+                   tau_p_s: float | Sequence[float] = 0.0,
+                   window: tuple[float, float] = DEFAULT_WINDOW,
+                   start_s: float | None | Sequence[float | None] = None,
+                   method: str = "nonlinear",
+                   c_star: float | None | Sequence[float | None] = None,
+                   progress: Callable[[int, int], None] | None = None
+                   ) -> list[CurveAnalysis | Rejected]:
+    """Analyse many curves at once; a curve that gives no kLa gets a :class:`Rejected` slot.
+
+    Parameters
+    ----------
+    curves : sequence of (t_s, c)
+        Times [s] and DO readings [any unit] of each curve.
+    tau_p_s : float or sequence
+        Probe time constant [s], one for all or one per curve.
+    window : (float, float)
+        Fractions of the rise [-] to fit.
+    start_s : float or sequence, optional
+        Gas-on times [s]; None (or a None entry) detects it.
+    method : str
+        ``"nonlinear"`` or ``"log-linear"``.
+    c_star : float or sequence, optional
+        Saturation concentrations [unit of each curve].
+    progress : callable, optional
+        Called as ``progress(done, total)`` after each chunk of curves, for a progress bar.
+
+    Returns
+    -------
+    list
+        One :class:`CurveAnalysis` or :class:`Rejected` per curve, in order.
+    """
+    if method not in CURVE_METHODS:
+        raise InputError(f"unknown method {method!r}; choose one of {', '.join(CURVE_METHODS)}",
+                         "method", method)
+    lo, hi = _check_window(window)
+    total = len(curves)
+    taus = _per_curve(tau_p_s, total, "tau_p_s")
+    starts = _per_curve(start_s, total, "start_s")
+    stars = _per_curve(c_star, total, "c_star")
+    for tau in taus:
+        if not (np.isfinite(tau) and tau >= 0):
+            raise InputError(f"{tau!r} is not a probe time constant; expected 0 s or more",
+                             "tau_p_s", tau)
+    out: list[CurveAnalysis | Rejected] = []
+    for first in range(0, total, _CHUNK_CURVES):
+        chunk = range(first, min(first + _CHUNK_CURVES, total))
+        prepared = [prepare(*curves[i], start_s=starts[i], c_star=stars[i]) for i in chunk]
+        out.extend(_analyse_prepared(prepared, [float(taus[i]) for i in chunk], lo, hi,
+                                     method, [stars[i] for i in chunk]))
+        if progress is not None:
+            progress(chunk.stop, total)
+    return out
+
+
+def _check_window(window: tuple[float, float]) -> tuple[float, float]:
+    try:
+        lo, hi = (float(v) for v in window)
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"{window!r} is not a window; expected two fractions such as "
+                         "0.2:0.98", "window", window) from exc
+    if not (0.0 <= lo < hi <= 1.0):
+        raise InputError(f"{lo:g}:{hi:g} is not a window of the rise; expected "
+                         "0 <= low < high <= 1, e.g. 0.2:0.98", "window", window)
+    return lo, hi
+
+
+def _per_curve(value, total: int, name: str) -> list:
+    if value is None or np.isscalar(value):
+        return [value] * total
+    values = list(value)
+    if len(values) != total:
+        raise InputError(f"{len(values)} values for {total} curves", name, value)
+    return values
+
+
+def _pad(items: list[Prepared], taus: list[float]):
+    n = max(len(p.t) for p in items)
+    m = len(items)
+    t = np.zeros((m, n))
+    c = np.zeros((m, n))
+    usable = np.zeros((m, n), bool)
+    for i, p in enumerate(items):
+        t[i, :len(p.t)] = p.t - p.start
+        c[i, :len(p.t)] = p.c
+        usable[i, :len(p.t)] = p.t >= p.start
+    return t, c, usable, np.array(taus)
+
+
+def _analyse_prepared(prepared: list[Prepared | Rejected], taus: list[float], lo: float,
+                      hi: float, method: str, stars: list) -> list[CurveAnalysis | Rejected]:
+    results: list[CurveAnalysis | Rejected] = list(prepared)
+    idx = [i for i, p in enumerate(prepared) if isinstance(p, Prepared)]
+    if not idx:
+        return results
+    items = [prepared[i] for i in idx]
+    t, c, usable, tau = _pad(items, [taus[i] for i in idx])
+    nonlinear = _nonlinear(t, c, usable, tau, lo, hi)
+    loglin = _log_linear(t, c, usable, lo, hi, [stars[i] for i in idx])
+    for j, i in enumerate(idx):
+        p = items[j]
+        nl, nl_reason = nonlinear[j]
+        ll, ll_reason = loglin[j]
+        primary, reason = (nl, nl_reason) if method == "nonlinear" else (ll, ll_reason)
+        if primary is None:
+            results[i] = Rejected(reason[0], reason[1])
+            continue
+        warnings = list(p.warnings)
+        bias = None
+        if nl is not None:
+            fit, bias = _to_fit(nl, p), nl.get("bias")
+            warnings += nl["warnings"]
+        else:
+            fit = None
+            warnings.append(f"nonlinear fit not available: {nl_reason[0]}")
+        llfit = _to_fit(ll, p) if ll is not None else None
+        if ll is None:
+            warnings.append(f"log-linear method not available: {ll_reason[0]}")
+        results[i] = CurveAnalysis(method=method, nonlinear=fit, log_linear=llfit,
+                                   lag_bias=bias, start_detected=p.start_detected,
+                                   warnings=tuple(warnings))
+    return results
+
+
+def _to_fit(d: dict, p: Prepared) -> CurveFit:
+    times = d["t"] + p.start
+    return CurveFit(
+        method=d["method"], kla_per_s=d["k"], kla_stderr_per_s=d["se"],
+        kla_ci95_per_s=d["ci"], c_inf=d["c_inf"], c_inf_stderr=d["c_inf_se"], c0=d["c0"],
+        c0_stderr=d["c0_se"], start_s=p.start, window_s=(float(times[0]), float(times[-1])),
+        tau_p_s=d["tau"], n_points=int(times.size), rmse=d["rmse"], r_squared=d["r2"],
+        durbin_watson=d["dw"], times_s=times, residuals=d["r"], covariance=d.get("cov"))
+
+
+def _t975(dof: np.ndarray) -> np.ndarray:
+    from scipy.stats import t as student_t
+
+    with np.errstate(invalid="ignore"):
+        return np.where(dof > 0, student_t.ppf(0.975, np.maximum(dof, 1)), np.nan)
+
+
+def _goodness(t_row, c_row, model_row) -> dict:
+    r = c_row - model_row
+    ssr = float(r @ r)
+    sst = float(((c_row - c_row.mean()) ** 2).sum())
+    dof = max(r.size - 3, 1)
+    dw = float((np.diff(r) ** 2).sum() / ssr) if ssr > 0 else float("nan")
+    return {"t": t_row, "r": r, "rmse": float(np.sqrt(ssr / dof)),
+            "r2": 1.0 - ssr / sst if sst > 0 else float("nan"), "dw": dw}
+
+
+def _nonlinear(t, c, usable, tau, lo, hi) -> list[tuple[dict | None, tuple[str, str] | None]]:
+    """The nonlinear fit of a padded batch, with the window found from the fit and iterated."""
+    m, n = t.shape
+    # a rough fit on every few samples only has to locate the window
+    every = max(1, n // 300)
+    fit = expfit.fit_batch(t[:, ::every], c[:, ::every], usable[:, ::every], tau)
+    alive = fit.converged.copy()
+    short = np.zeros(m, bool)
+    mask = np.zeros_like(usable)
+    for _ in range(6):
+        frac = 1.0 - expfit.row_response(t, fit.kla_per_s, tau)
+        new = usable & (frac >= lo) & (frac <= hi)
+        short |= alive & (new.sum(1) < MIN_POINTS)
+        alive &= ~short
+        changed = alive & (new != mask).any(1)
+        if not changed.any():
+            break
+        mask[changed] = new[changed]
+        rows = np.flatnonzero(changed)
+        refit = expfit.fit_batch(t[rows], c[rows], mask[rows], tau[rows],
+                                 fit.kla_per_s[rows])
+        fit = _merge(fit, refit, rows)
+        alive[rows] &= refit.converged
+    else:
+        frac = 1.0 - expfit.row_response(t, fit.kla_per_s, tau)
+    model = fit.c_inf[:, None] - (fit.c_inf - fit.c0)[:, None] * (1.0 - frac)
+    bias = _lag_bias_batch(t, mask, tau, fit.kla_per_s, alive)
+    ci_half = _t975(fit.n_points - 3.0) * fit.kla_stderr_per_s
+    out = []
+    for i in range(m):
+        if short[i]:
+            out.append((None, (f"too few samples in the window {lo:g} to {hi:g} of the rise "
+                               f"({int(new[i].sum())}; at least {MIN_POINTS} needed): "
+                               "widen the window or record more often", "too_short")))
+            continue
+        k = float(fit.kla_per_s[i])
+        if not (alive[i] and np.isfinite(k) and k > 0 and np.isfinite(fit.ssr[i])):
+            out.append((None, ("the nonlinear fit did not converge; the curve may not be a "
+                               "first-order rise (check the start time and the window)",
+                               "no_convergence")))
+            continue
+        sel = mask[i]
+        d = _goodness(t[i, sel], c[i, sel], model[i, sel])
+        d.update(method="nonlinear", k=k, se=float(fit.kla_stderr_per_s[i]),
+                 ci=(k - float(ci_half[i]), k + float(ci_half[i])), c_inf=float(fit.c_inf[i]),
+                 c_inf_se=float(fit.c_inf_stderr[i]), c0=float(fit.c0[i]),
+                 c0_se=float(fit.c0_stderr[i]), tau=float(tau[i]), cov=fit.cov[i].copy(),
+                 bias=None if np.isnan(bias[i]) else float(bias[i]))
+        d["warnings"] = _fit_warnings(d, float(frac[i, sel][-1]) if sel.any() else 0.0, hi)
+        out.append((d, None))
+    return out
+
+
+def _merge(fit: expfit.BatchFit, refit: expfit.BatchFit, rows: np.ndarray) -> expfit.BatchFit:
+    merged = {}
+    for name in expfit.BatchFit.__dataclass_fields__:
+        arr = getattr(fit, name).copy()
+        arr[rows] = getattr(refit, name)
+        merged[name] = arr
+    return expfit.BatchFit(**merged)
+
+
+def _fit_warnings(d: dict, last_fraction: float, hi: float) -> list[str]:
+    out = []
+    k, tau = d["k"], d["tau"]
+    if d["se"] > 0.25 * k:
+        out.append(f"kLa is poorly determined: standard error {100 * d['se'] / k:.0f} % of "
+                   "the estimate")
+    if last_fraction < min(hi, 0.9) - 1e-9:
+        out.append(f"the data end at {100 * last_fraction:.0f} % of the rise: C_inf is "
+                   "extrapolated and kLa is less certain; record until the signal levels off")
+    if np.isfinite(d["dw"]) and d["dw"] < 1.0 and d["rmse"] > 1e-9 * abs(d["c_inf"] - d["c0"]):
+        out.append(f"the residuals are strongly correlated (Durbin-Watson {d['dw']:.2f}): the "
+                   "model does not follow the curve closely (probe lag, drift, a wrong start) "
+                   "and the stated interval is too narrow")
+    bias = d["bias"]
+    if bias is not None and abs(bias) > LAG_BIAS_WARNING:
+        out.append(f"probe lag: kLa*tau_p = {k * tau:.2f}; a fit without the lag correction "
+                   f"would read {100 * abs(bias):.0f} % {'low' if bias < 0 else 'high'} on "
+                   "these samples")
+    if tau > 0 and k * tau > 0.5:
+        out.append(f"the probe is slow for this kLa (kLa*tau_p = {k * tau:.2f} > 0.5): the "
+                   "estimate rests on the lag model; a faster probe would give a firmer one")
+    return out
+
+
+def _lag_bias_batch(t, mask, tau, kla, alive) -> np.ndarray:
+    """Relative error of an ideal-probe fit to the noise-free lagged curve on the same samples."""
+    bias = np.full(t.shape[0], np.nan)
+    rows = np.flatnonzero((tau > 0) & alive & (mask.sum(1) >= 4))
+    if rows.size == 0:
+        return bias
+    k = kla[rows]
+    clean = 1.0 - expfit.row_response(t[rows], k, tau[rows])
+    plain = expfit.fit_batch(t[rows], clean, mask[rows], 0.0, k)
+    bias[rows] = np.where(plain.converged, plain.kla_per_s / k - 1.0, np.nan)
+    return bias
+
+
+def lag_bias(kla_per_s: float, tau_p_s: float, t_s: np.ndarray) -> float:
+    """Relative error of kLa fitted without the lag correction to a lagged curve [-].
+
+    Parameters
+    ----------
+    kla_per_s : float
+        True kLa [1/s].
+    tau_p_s : float
+        Probe time constant [s].
+    t_s : array
+        Sample times since gas-on used by the fit [s].
+
+    Returns
+    -------
+    float
+        k_fitted / k_true - 1 [-] for the noise-free lagged curve on these samples; negative
+        means the uncorrected fit reads low.
+
+    Notes
+    -----
+    Late in the rise the lag term exp(-t/tau_p) has died away and the probe signal decays at
+    the true kLa, only scaled; the bias comes from the early samples, so it depends strongly
+    on the window: a fit from the start reads far lower than one that skips the first 20 %.
+
+    Examples
+    --------
+    kLa = 0.02 1/s, tau_p = 8 s, samples every 0.25 s over the whole rise:
+
+    >>> round(lag_bias(0.02, 8.0, np.linspace(0.0, 500.0, 2001)), 4)
+    -0.0713
+    """
+    t = np.asarray(t_s, dtype=float)[None, :]
+    return float(_lag_bias_batch(t, np.ones_like(t, bool), np.array([float(tau_p_s)]),
+                                 np.array([float(kla_per_s)]), np.array([True]))[0])
+
+
+def _log_linear(t, c, usable, lo, hi, stars) -> list[tuple[dict | None, tuple | None]]:
+    """The log-linear method on a padded batch (ordinary least squares on ln of the deficit)."""
+    m = t.shape[0]
+    n_use = usable.sum(1)
+    cw = np.where(usable, c, 0.0)
+    cum = np.cumsum(usable, 1)
+    q = np.maximum(5, n_use // 20)
+    tail = usable & ((n_use[:, None] - cum) < q[:, None])
+    head = usable & (cum <= q[:, None])
+    plateau = (cw * tail).sum(1) / tail.sum(1)
+    first = (cw * head).sum(1) / head.sum(1)
+    star = np.array([np.nan if s is None else float(s) for s in stars])
+    c_inf = np.where(np.isfinite(star), star, plateau)
+    rise = c_inf - first
+    with np.errstate(divide="ignore", invalid="ignore"):
+        frac = (cw - first[:, None]) / rise[:, None]
+        deficit = (c_inf[:, None] - cw) / np.sign(rise)[:, None]
+    sel = usable & (frac >= lo) & (frac <= hi) & (deficit > 0)
+    y = np.log(np.where(sel, deficit, 1.0))
+    w = sel.astype(float)
+    n = w.sum(1)
+    tw = t * w
+    st, sy, stt, sty = tw.sum(1), (y * w).sum(1), (tw * t).sum(1), (tw * y).sum(1)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        sxx = stt - st * st / n
+        slope = (sty - st * sy / n) / sxx
+        icpt = (sy - slope * st) / n
+        resid = np.where(sel, y - icpt[:, None] - slope[:, None] * t, 0.0)
+        s2 = (resid * resid).sum(1) / (n - 2)
+        se = np.sqrt(s2 / sxx)
+    half = _t975(n - 2.0) * se
+    out = []
+    for i in range(m):
+        if n[i] < 3 or not (np.isfinite(slope[i]) and slope[i] < 0):
+            why = (f"only {int(n[i])} samples lie below C_inf = {c_inf[i]:.4g} inside the window"
+                   if n[i] < 3 else "ln(C_inf - C) does not fall with time")
+            out.append((None, (why, "log_linear_failed")))
+            continue
+        k = float(-slope[i])
+        c0 = float(c_inf[i] - np.sign(rise[i]) * np.exp(icpt[i]))
+        s = sel[i]
+        model = c_inf[i] - (c_inf[i] - c0) * np.exp(-k * t[i, s])
+        d = _goodness(t[i, s], c[i, s], model)
+        d.update(method="log-linear", k=k, se=float(se[i]),
+                 ci=(k - float(half[i]), k + float(half[i])),
+                 c_inf=float(c_inf[i]), c_inf_se=float("nan"), c0=c0, c0_se=float("nan"),
+                 tau=0.0)
+        out.append((d, None))
+    return out
+
+
+def fit_probe_step(t_s: Sequence[float] | np.ndarray, c: Sequence[float] | np.ndarray, *,
+                   start_s: float | None = None,
+                   window: tuple[float, float] = (0.05, 0.98)) -> ProbeStep:
+    """Probe time constant from a step test: the probe moved from zero to a saturated liquid.
+
+    Parameters
+    ----------
+    t_s : array
+        Sample times [s].
+    c : array
+        Probe readings [any unit].
+    start_s : float, optional
+        Time of the step [s]; detected when not given.
+    window : (float, float)
+        Fractions of the step [-] to fit (default 0.05 to 0.98).
+
+    Returns
+    -------
+    ProbeStep
+        tau_p [s] = 1/k of the first-order response, with its standard error [s].
+
+    Examples
+    --------
+    >>> t = np.arange(0.0, 60.0, 0.25)
+    >>> round(fit_probe_step(t, 100 * (1 - np.exp(-t / 6.0)), start_s=0.0).tau_p_s, 9)
+    6.0
+    """
+    res = analyse_curve(t_s, c, tau_p_s=0.0, window=window, start_s=start_s)
+    fit = res.nonlinear
+    assert fit is not None
+    tau = 1.0 / fit.kla_per_s
+    return ProbeStep(tau_p_s=tau, tau_p_stderr_s=fit.kla_stderr_per_s * tau * tau,
+                     n_points=fit.n_points, warnings=res.warnings)

@@ -1,0 +1,454 @@
+"""First-order step responses fitted by separable least squares, many curves at once.
+
+A gassing-out curve seen through a first-order probe is
+
+.. math::
+    C_p(t) = C_\\infty - (C_\\infty - C_0)\\, g(t; k, \\tau_p), \\qquad
+    g = \\frac{e^{-k t} - k \\tau_p e^{-t/\\tau_p}}{1 - k \\tau_p}
+
+with :math:`g = e^{-k t}` when :math:`\\tau_p = 0`. For a fixed :math:`k` the model is linear
+in :math:`C_\\infty` and :math:`C_0`, so they are solved in closed form and only :math:`k`
+is searched (variable projection, Golub and Pereyra [1]_, with Kaufman's Gauss-Newton step
+[2]_). All curves of a batch are padded into one ``(m, n)`` array with a mask and iterated
+together, so the work per iteration is a handful of whole-array numpy operations.
+
+References
+----------
+.. [1] Golub, G. H.; Pereyra, V. "The differentiation of pseudo-inverses and nonlinear least
+   squares problems whose variables separate." SIAM J. Numer. Anal. 10 (1973) 413-432.
+.. [2] Kaufman, L. "A variable projection method for solving separable nonlinear least
+   squares problems." BIT 15 (1975) 49-57.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+# Below this |1 - k tau_p| the textbook form of g loses digits to cancellation; the
+# symmetric form with expm1 is used instead (slower, exact everywhere).
+_NEAR_SINGULAR = 0.05
+_SERIES_X = 1e-2  # below this x the series of phi and omega is exact to ~1e-13
+
+
+@dataclass(frozen=True, eq=False)
+class BatchFit:
+    """Estimates for a batch of ``m`` curves (arrays of shape ``(m,)``; ``cov`` is (m, 3, 3)).
+
+    ``cov`` is the covariance of (c_inf, c0, kla) from the Jacobian at the optimum, scaled by
+    the residual variance ``ssr / (n_points - 3)`` as in ordinary nonlinear least squares.
+    Concentrations are in the unit of the data; ``kla_per_s`` in 1/s.
+    """
+
+    kla_per_s: np.ndarray
+    kla_stderr_per_s: np.ndarray
+    c_inf: np.ndarray
+    c_inf_stderr: np.ndarray
+    c0: np.ndarray
+    c0_stderr: np.ndarray
+    cov: np.ndarray
+    ssr: np.ndarray
+    n_points: np.ndarray
+    iterations: np.ndarray
+    converged: np.ndarray
+
+
+def response(t: np.ndarray | float, kla: np.ndarray | float,
+             tau_p: np.ndarray | float = 0.0) -> np.ndarray:
+    """Fraction of a concentration step not yet shown by the probe, g(t) [-].
+
+    Parameters
+    ----------
+    t : array or float
+        Time since the step [s].
+    kla : array or float
+        Volumetric mass-transfer coefficient [1/s]; broadcasts against ``t``.
+    tau_p : array or float
+        First-order probe time constant [s]; 0 for an ideal probe.
+
+    Returns
+    -------
+    array
+        g [-], 1 at t = 0 falling to 0.
+
+    Examples
+    --------
+    >>> float(response(10.0, 0.1))  # exp(-1)
+    0.36787944117144233
+    >>> round(float(response(10.0, 0.1, 10.0)), 12)  # k tau_p = 1: (1 + t/tau) exp(-t/tau)
+    0.735758882343
+    """
+    t, k, tau = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (t, kla, tau_p)))
+    g, _ = _basis(t.reshape(-1, 1), k.ravel(), tau.ravel(), derivative=False)
+    return g.reshape(t.shape)
+
+
+def row_response(t: np.ndarray, kla: np.ndarray, tau_p: np.ndarray) -> np.ndarray:
+    """g for a batch: ``t`` (m, n) [s], one kLa [1/s] and tau_p [s] per row (m,)."""
+    return _basis(np.asarray(t, float), np.asarray(kla, float), np.asarray(tau_p, float),
+                  derivative=False)[0]
+
+
+def _basis(t: np.ndarray, k: np.ndarray, tau: np.ndarray, probe: np.ndarray | None = None,
+           derivative: bool = True) -> tuple[np.ndarray, np.ndarray | None]:
+    """g (and dg/dk if ``derivative``) for rows of ``t`` (m, n), one kLa and tau_p per row.
+
+    ``probe`` holds exp(-t/tau_p) when the caller has it already. Rows are split into three
+    groups (ideal probe, lagged, lagged near k tau_p = 1), each computed on its own rows only.
+    """
+    ideal = tau <= 0.0
+    near = ~ideal & (np.abs(1.0 - k * tau) < _NEAR_SINGULAR)
+    direct = ~ideal & ~near
+    with np.errstate(divide="ignore"):
+        b = np.where(ideal, np.inf, 1.0 / np.where(ideal, 1.0, tau))
+    groups = [(ideal, lambda r: _ideal(t[r], k[r, None], derivative)),
+              (direct, lambda r: _lag_direct(t[r], k[r, None], b[r, None],
+                                             None if probe is None else probe[r], derivative)),
+              (near, lambda r: _lag_stable(t[r], k[r, None], b[r, None], derivative))]
+    g = v = None
+    for rows, compute in groups:
+        if not rows.any():
+            continue
+        if rows.all():
+            return compute(slice(None))
+        if g is None:
+            g = np.empty(t.shape)
+            v = np.empty(t.shape) if derivative else None
+        g_r, v_r = compute(rows)
+        g[rows] = g_r
+        if derivative:
+            v[rows] = v_r
+    return g, v
+
+
+def _ideal(t, a, derivative=True):
+    e = np.exp(-a * t)
+    return e, (-t * e if derivative else None)
+
+
+def _lag_direct(t, a, b, probe=None, derivative=True):
+    """Textbook form: g = (b e^{-at} - a e^{-bt})/(b - a),
+    dg/da = b [e^{-at} (1 - (b - a) t) - e^{-bt}] / (b - a)^2."""
+    e = np.exp(-a * t)
+    f = np.exp(-b * t) if probe is None else probe
+    d = b - a
+    g = (b / d) * e - (a / d) * f
+    if not derivative:
+        return g, None
+    v = (b / (d * d)) * (e * (1.0 - d * t) - f)
+    return g, v
+
+
+def _lag_stable(t, a, b, derivative=True):
+    """Symmetric form, exact through k tau_p = 1.
+
+    With s = min(a, b), f = max(a, b), x = |a - b| t and phi(x) = (1 - e^{-x})/x:
+    g = e^{-st} (f t phi + e^{-x}) and dg/da = -b t^2 e^{-st} omega(x), where
+    omega = (e^{-x} - 1 + x)/x^2 if a < b and (1 - (1 + x) e^{-x})/x^2 if a > b.
+    """
+    s = np.minimum(a, b)
+    f = np.maximum(a, b)
+    x = (f - s) * t
+    em = np.expm1(-x)
+    slow_liquid = np.broadcast_to(a <= b, x.shape)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        phi = -em / x
+        omega = np.where(slow_liquid, em + x, -em - x * (1.0 + em)) / (x * x)
+    small = x < _SERIES_X
+    if small.any():
+        xs = x[small]
+        phi[small] = 1.0 - xs / 2 + xs**2 / 6 - xs**3 / 24 + xs**4 / 120
+        series_a = 0.5 - xs / 6 + xs**2 / 24 - xs**3 / 120 + xs**4 / 720
+        series_b = 0.5 - xs / 3 + xs**2 / 8 - xs**3 / 30 + xs**4 / 144
+        omega[small] = np.where(slow_liquid[small], series_a, series_b)
+    decay = np.exp(-s * t)
+    g = decay * (f * t * phi + 1.0 + em)
+    if not derivative:
+        return g, None
+    v = -b * t * t * decay * omega
+    return g, v
+
+
+_CHUNK_ELEMENTS = 200_000  # rows per chunk chosen so each work array stays in cache
+
+
+class _Chunk:
+    """One cache-sized chunk of curves: constants, and a work buffer for the moment sums.
+
+    ``work[:, j, :]`` holds e = exp(-k t), t e, the mask, the centred data and
+    f = exp(-t/tau_p); one batched matrix product of its first two rows with all five gives
+    every sum an iteration needs.
+    """
+
+    def __init__(self, t, c, mask, tau):
+        # masked samples get t = 0 (a fast, finite exponential) and are zeroed by the mask
+        self.full = bool(mask.all())
+        self.t = t if self.full else np.where(mask, t, 0.0)
+        self.n = mask.sum(1).astype(float)
+        c = c if self.full else np.where(mask, c, 0.0)
+        self.shift = c.sum(1) / np.maximum(self.n, 1.0)
+        r, n = t.shape
+        self.work = np.empty((r, 5, n))
+        self.work[:, 2] = mask
+        np.subtract(c, self.shift[:, None], out=self.work[:, 3])
+        if not self.full:
+            self.work[:, 3] *= mask
+        self.s_cc = np.einsum("ij,ij->i", self.work[:, 3], self.work[:, 3])
+        self.tau = tau
+        self.lagged = tau > 0
+        self.b = np.where(self.lagged, 1.0 / np.where(self.lagged, tau, 1.0), np.inf)
+        self.work[:, 4] = 0.0
+        if self.lagged.all():
+            np.exp(self.t * -self.b[:, None], out=self.work[:, 4])
+        elif self.lagged.any():
+            rows = np.flatnonzero(self.lagged)
+            self.work[rows, 4] = np.exp(-self.t[rows] * self.b[rows, None])
+        if not self.full:
+            self.work[:, 4] *= mask
+        self.f1 = self.work[:, 4].sum(1)
+        self.f2 = np.einsum("ij,ij->i", self.work[:, 4], self.work[:, 4])
+        self.fc = np.einsum("ij,ij->i", self.work[:, 4], self.work[:, 3])
+
+    def keep(self, rows: np.ndarray) -> None:
+        """Drop the rows not listed (converged curves) so later iterations skip them."""
+        for name in ("t", "n", "shift", "work", "s_cc", "tau", "lagged", "b", "f1", "f2", "fc"):
+            setattr(self, name, getattr(self, name)[rows])
+
+    def sums(self, k: np.ndarray) -> np.ndarray:
+        """(Sg, Sgg, Scg, Sv, Svv, Sgv, Scv) for every row at kLa ``k``; v = dg/dk."""
+        work, t, b = self.work, self.t, self.b
+        np.multiply(t, -k[:, None], out=work[:, 0])
+        np.exp(work[:, 0], out=work[:, 0])
+        if not self.full:
+            work[:, 0] *= work[:, 2]
+        np.multiply(t, work[:, 0], out=work[:, 1])
+        z = np.matmul(work[:, :2], work.transpose(0, 2, 1))
+        e2, et, e1, ec, ef = (z[:, 0, j] for j in range(5))
+        t2, t1, tc, tf = (z[:, 1, j] for j in range(1, 5))
+        out = np.array([e1, e2, ec, -t1, t2, -et, -tc])  # ideal probe: g = e, v = -t e
+        near = self.lagged & (np.abs(1.0 - k / b) < _NEAR_SINGULAR)
+        lag = self.lagged & ~near
+        if lag.any():
+            out[:, lag] = _lag_sums(k[lag], b[lag], e1[lag], e2[lag], ec[lag], t1[lag],
+                                    t2[lag], tc[lag], et[lag], ef[lag], tf[lag],
+                                    self.f1[lag], self.f2[lag], self.fc[lag])
+        if near.any():
+            g, v = _lag_stable(t[near], k[near, None], b[near, None])
+            g *= work[near, 2]
+            v *= work[near, 2]
+            cn = work[near, 3]
+            out[:, near] = [g.sum(1), np.einsum("ij,ij->i", g, g), np.einsum("ij,ij->i", g, cn),
+                            v.sum(1), np.einsum("ij,ij->i", v, v),
+                            np.einsum("ij,ij->i", g, v), np.einsum("ij,ij->i", v, cn)]
+        return out
+
+
+def _lag_sums(a, b, e1, e2, ec, t1, t2, tc, et, ef, tf, f1, f2, fc):
+    """Sums of g = p e - q f and v = r (e - d t e - f) from sums of e, t e and f.
+
+    d = b - a, p = b/d, q = a/d, r = b/d^2 (the textbook form, used away from a = b).
+    """
+    d = b - a
+    p, q, r = b / d, a / d, b / (d * d)
+    s_g = p * e1 - q * f1
+    s_gg = p * p * e2 - 2 * p * q * ef + q * q * f2
+    s_cg = p * ec - q * fc
+    s_u = e1 - d * t1 - f1
+    s_uu = e2 + d * d * t2 + f2 - 2 * d * et - 2 * ef + 2 * d * tf
+    s_gu = p * (e2 - d * et - ef) - q * (ef - d * tf - f2)
+    s_cu = ec - d * tc - fc
+    return np.array([s_g, s_gg, s_cg, r * s_u, r * r * s_uu, r * s_gu, r * s_cu])
+
+
+def guess_kla(t: np.ndarray, c: np.ndarray, mask: np.ndarray) -> np.ndarray:
+    """A rough kLa [1/s] per row, to start the fit from.
+
+    Parameters
+    ----------
+    t : array (m, n)
+        Time since the step [s].
+    c : array (m, n)
+        Readings in any concentration unit [mol/m3, mg/L or %].
+    mask : bool array (m, n)
+        Samples to use.
+
+    Returns
+    -------
+    array (m,)
+        kLa [1/s] from a straight line through ln(1 - fraction of the rise) between 10 % and
+        80 % of the rise seen from the first to the last few samples; it reads low for a lagged
+        probe and high when the curve stops short of its plateau, which the fit then corrects.
+    """
+    t = np.where(mask, t, 0.0)
+    w = mask.astype(float)
+    cum_w = np.cumsum(w, 1)
+    first = (cum_w <= 5) & mask
+    last = ((cum_w[:, -1:] - cum_w) < 5) & mask
+    with np.errstate(divide="ignore", invalid="ignore"):
+        c_first = np.where(first, c, 0.0).sum(1) / first.sum(1)
+        c_last = np.where(last, c, 0.0).sum(1) / last.sum(1)
+        frac = (np.where(mask, c, 0.0) - c_first[:, None]) / (c_last - c_first)[:, None]
+    sel = mask & (frac >= 0.1) & (frac <= 0.8)
+    y = np.log(np.clip(1.0 - np.where(sel, frac, 0.0), 1e-9, None))
+    ws = sel.astype(float)
+    n = ws.sum(1)
+    st, sy = (t * ws).sum(1), (y * ws).sum(1)
+    stt, sty = (t * t * ws).sum(1), (t * y * ws).sum(1)
+    span = t.max(1) - np.where(mask, t, np.inf).min(1)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        slope = (n * sty - st * sy) / (n * stt - st * st)
+        fallback = 3.0 / span
+    k = np.where((n >= 2) & (slope < 0) & np.isfinite(slope), -slope, fallback)
+    return np.where(np.isfinite(k) & (k > 0), k, 1e-3)
+
+
+def fit_batch(t: np.ndarray, c: np.ndarray, mask: np.ndarray, tau_p: np.ndarray | float,
+              kla_guess: np.ndarray | None = None, *, max_iter: int = 60,
+              rtol: float = 1e-9) -> BatchFit:
+    """Fit C_inf, C0 and kLa to each row of a batch of step responses.
+
+    Parameters
+    ----------
+    t : array (m, n)
+        Time since the step [s] (the gas switched on); masked entries may hold anything.
+    c : array (m, n)
+        Probe readings in any concentration unit [mol/m3, mg/L or %]; masked entries ignored.
+    mask : bool array (m, n)
+        Which samples each fit uses.
+    tau_p : array (m,) or float
+        Probe time constant [s] per curve; 0 fits the ideal-probe model.
+    kla_guess : array (m,), optional
+        Starting values of kLa [1/s]; default :func:`guess_kla`.
+    max_iter : int
+        Iteration limit; rows not converged by then are flagged in ``converged``.
+    rtol : float
+        Convergence when the Gauss-Newton step in kLa is below ``rtol * kLa`` [-].
+
+    Returns
+    -------
+    BatchFit
+        Estimates with standard errors; concentrations in the unit of ``c``, kLa [1/s].
+
+    Notes
+    -----
+    Each step is Kaufman's Gauss-Newton step on the variable-projection functional; a step
+    that raises the residual sum of squares (beyond its rounding floor) is halved, and kLa is
+    kept positive. The data are centred per curve so the residual sum of squares, computed from
+    sums, keeps its digits. Rows are processed in chunks small enough to stay in cache.
+
+    Examples
+    --------
+    >>> tt = np.linspace(0.0, 300.0, 301)[None, :]
+    >>> cc = 8.0 - 7.5 * np.exp(-0.02 * tt)
+    >>> fit = fit_batch(tt, cc, np.ones_like(tt, bool), 0.0)
+    >>> round(float(fit.kla_per_s[0]), 9), round(float(fit.c_inf[0]), 9)
+    (0.02, 8.0)
+    """
+    t = np.asarray(t, dtype=float)
+    c = np.asarray(c, dtype=float)
+    mask = np.asarray(mask, dtype=bool) & np.isfinite(t) & np.isfinite(c)
+    m, n = t.shape
+    tau = np.broadcast_to(np.asarray(tau_p, dtype=float), (m,))
+    stride = max(1, n // 256)  # a starting value needs no more than a few hundred samples
+    rows = max(1, _CHUNK_ELEMENTS // max(n, 1))
+    parts = []
+    for i in range(0, m, rows):
+        part = slice(i, i + rows)
+        if kla_guess is None:
+            k0 = guess_kla(t[part, ::stride], c[part, ::stride], mask[part, ::stride])
+        else:
+            k0 = np.broadcast_to(np.asarray(kla_guess, dtype=float), (m,))[part].copy()
+        parts.append(_fit_chunk(_Chunk(t[part], c[part], mask[part], tau[part]), k0,
+                                max_iter, rtol))
+    return BatchFit(*(np.concatenate([getattr(p, f) for p in parts])
+                      for f in BatchFit.__dataclass_fields__))
+
+
+def _fit_chunk(ch: _Chunk, k: np.ndarray, max_iter: int, rtol: float) -> BatchFit:
+    m = k.size
+    n, s_cc, shift = ch.n, ch.s_cc, ch.shift
+    k_best = k.copy()
+    ssr_best = np.full(m, np.inf)
+    step = np.zeros(m)
+    best = np.zeros((7, m))
+    lin_best = np.zeros((2, m))
+    active = np.ones(m, bool)
+    converged = np.zeros(m, bool)
+    iterations = np.zeros(m, int)
+    floor = 1e-12 * s_cc + 1e-300  # rounding floor of an SSR computed from these sums
+    held = np.arange(m)  # chunk rows still in the work buffer
+    for _ in range(max_iter):
+        moving = active[held]
+        if not moving.any():
+            break
+        if moving.sum() < 0.6 * held.size:
+            ch.keep(np.flatnonzero(moving))
+            held = held[moving]
+            moving = np.ones(held.size, bool)
+        rows = held[moving]
+        iterations[rows] += 1
+        sums = ch.sums(k[held])[:, moving]
+        s_g, s_gg, s_cg, s_v, s_vv, s_gv, s_cv = sums
+        nn = n[rows]
+        det = nn * s_gg - s_g * s_g
+        with np.errstate(divide="ignore", invalid="ignore"):
+            # the centred data sum to zero, so the normal equations lose their s_c terms
+            alpha = -s_g * s_cg / det
+            beta = nn * s_cg / det
+            ssr = s_cc[rows] - beta * s_cg
+        better = np.isfinite(ssr) & (ssr <= ssr_best[rows] + floor[rows])
+        acc = rows[better]
+        k_best[acc] = k[acc]
+        ssr_best[acc] = ssr[better]
+        best[:, acc] = sums[:, better]
+        lin_best[:, acc] = alpha[better], beta[better]
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            grad = s_cv - alpha * s_v - beta * s_gv
+            proj = s_vv - (s_gg * s_v**2 - 2 * s_g * s_v * s_gv + nn * s_gv**2) / det
+            gn = grad / (beta * proj)
+        gn = np.where(np.isfinite(gn), gn, 0.0)
+        new_step = np.where(better, gn, step[rows] / 2.0)
+        base = k_best[rows]
+        # keep kLa positive and move at most tenfold per iteration
+        trial = np.clip(base + new_step, base / 10.0, base * 10.0)
+        new_step = trial - base
+        done = np.abs(new_step) <= rtol * base
+        converged[rows[done]] = True
+        active[rows[done]] = False
+        step[rows] = new_step
+        k[rows] = trial
+    return _statistics(n, shift, k_best, ssr_best, best, lin_best, iterations, converged)
+
+
+def _statistics(n, shift, k_best, ssr_best, best, lin_best, iterations, converged
+                ) -> BatchFit:
+    """Covariance of (alpha, beta, k) from J'J, then of (c_inf = alpha, c0 = alpha + beta, k)."""
+    m = k_best.size
+    s_g, s_gg, _, s_v, s_vv, s_gv, _ = best
+    alpha, beta = lin_best
+    jtj = np.empty((m, 3, 3))
+    jtj[:, 0, 0], jtj[:, 0, 1], jtj[:, 0, 2] = n, s_g, beta * s_v
+    jtj[:, 1, 1], jtj[:, 1, 2] = s_gg, beta * s_gv
+    jtj[:, 2, 2] = beta * beta * s_vv
+    jtj[:, 1, 0], jtj[:, 2, 0], jtj[:, 2, 1] = jtj[:, 0, 1], jtj[:, 0, 2], jtj[:, 1, 2]
+    dof = n - 3.0
+    finite = np.isfinite(jtj).all(axis=(1, 2))
+    inv = np.full((m, 3, 3), np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s2 = np.where(dof > 0, np.maximum(ssr_best, 0.0) / dof, np.nan)
+        if finite.any():
+            sub = jtj[finite]
+            ok = np.abs(np.linalg.det(sub)) > 0
+            rows = np.flatnonzero(finite)[ok]
+            inv[rows] = np.linalg.inv(sub[ok])
+    transform = np.array([[1.0, 0, 0], [1.0, 1.0, 0], [0, 0, 1.0]])
+    cov = s2[:, None, None] * (transform @ inv @ transform.T)
+    with np.errstate(invalid="ignore"):
+        se = np.sqrt(np.diagonal(cov, axis1=1, axis2=2))
+    return BatchFit(
+        kla_per_s=k_best, kla_stderr_per_s=se[:, 2],
+        c_inf=alpha + shift, c_inf_stderr=se[:, 0],
+        c0=alpha + beta + shift, c0_stderr=se[:, 1],
+        cov=cov, ssr=ssr_best, n_points=n.astype(int), iterations=iterations,
+        converged=converged & np.isfinite(ssr_best))
