@@ -75,7 +75,8 @@ def resample_blocks(n_units: int, n_resamples: int, seed: int | None = 0,
     done = 0
     while done < n_resamples:
         b = min(block, n_resamples - done)
-        yield rng.integers(0, n_units, size=(b, n_units))
+        # 32-bit indices draw about twice as fast as 64-bit ones and count faster
+        yield rng.integers(0, n_units, size=(b, n_units), dtype=np.int32)
         done += b
 
 
