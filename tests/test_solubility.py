@@ -194,3 +194,10 @@ def test_log_mean_driving_force_with_dissolved_oxygen():
 def test_high_pressure_carries_a_note():
     result = solubility.saturation("H2", 333.15, 3e6)
     assert any("10 bar" in w for w in result.warnings)
+
+
+def test_log_mean_in_seawater_uses_the_seawater_density():
+    fresh = solubility.log_mean_saturation("O2", 298.15, 101325.0, 10.0)
+    salty = solubility.log_mean_saturation("O2", 298.15, 101325.0, 10.0, salinity=0.035)
+    assert salty.bottom_pressure_pa > fresh.bottom_pressure_pa  # denser liquid, more head
+    assert salty.c_star_log_mean_mol_m3 < fresh.c_star_log_mean_mol_m3

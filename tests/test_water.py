@@ -12,7 +12,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from scaleup.errors import InputError, OutOfRange
-from scaleup.props import medium, water
+from scaleup.props import seawater, water
 
 liquid_T = st.floats(273.15, 373.15)
 
@@ -69,7 +69,7 @@ def test_nan_temperature_is_refused():
 
 
 def test_liquid_properties_overrides_and_sources():
-    props = medium.liquid_properties(310.15, overrides={"density": 1010.0,
+    props = water.liquid_properties(310.15, overrides={"density": 1010.0,
                                                         "surface_tension": 0.055})
     assert props.density_kg_m3 == 1010.0 and props.sources["density"] == "measured"
     assert props.surface_tension_n_m == 0.055
@@ -79,31 +79,31 @@ def test_liquid_properties_overrides_and_sources():
 
 
 def test_liquid_properties_salinity_uses_seawater_model():
-    props = medium.liquid_properties(298.15, salinity=0.035)
+    props = water.liquid_properties(298.15, salinity=0.035)
     assert props.sources["density"].startswith("Sharqawy")
     assert props.density_kg_m3 > water.density(298.15) + 20
 
 
 def test_unknown_or_negative_override_is_refused():
     with pytest.raises(ValueError, match="cannot override colour"):
-        medium.liquid_properties(300.0, overrides={"colour": 1.0})
+        water.liquid_properties(300.0, overrides={"colour": 1.0})
     with pytest.raises(OutOfRange, match="density"):
-        medium.liquid_properties(300.0, overrides={"density": -1.0})
+        water.liquid_properties(300.0, overrides={"density": -1.0})
 
 
 def test_salinity_outside_sharqawy_range_is_refused():
     with pytest.raises(OutOfRange, match="0 to 0.16 kg/kg"):
-        medium.density_Sharqawy(300.0, 0.2)
+        seawater.density_Sharqawy(300.0, 0.2)
 
 
 @given(st.floats(0.0, 0.15), liquid_T)
 @settings(max_examples=40, deadline=None)
 def test_salt_makes_water_denser_and_more_viscous(salinity, T):
-    assert medium.density_Sharqawy(T, salinity) >= water.density(T) - 1e-9
-    assert medium.viscosity_Sharqawy(T, salinity) >= water.viscosity(T) * (1 - 1e-12)
+    assert seawater.density_Sharqawy(T, salinity) >= water.density(T) - 1e-9
+    assert seawater.viscosity_Sharqawy(T, salinity) >= water.viscosity(T) * (1 - 1e-12)
 
 
-PROPS_MODULES = ["water", "medium", "henry", "oxygen", "salting", "solubility",
+PROPS_MODULES = ["water", "seawater", "henry", "oxygen", "salting", "solubility",
                  "diffusion_estimates", "diffusion_measured", "diffusivity", "transport"]
 
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from scaleup.props import medium
+from scaleup.props import seawater
 from scaleup.props._common import check_fraction, check_gas_pressure, check_range, is_scalar, out
 from scaleup.units import M_O2, P_ATM
 
@@ -128,7 +128,7 @@ def c_star_O2_Garcia_Gordon(T, salinity=0.0, pressure=P_ATM, o2_fraction=AIR_O2_
     -----
     The "Benson and Krause" coefficient set of the paper (Table 1), valid from the freezing
     point to 40 degC and 0 to 42 g/kg, fit standard error 0.0034 % (their Table 1). The
-    density is that of :func:`scaleup.props.medium.density_Sharqawy`.
+    density is that of :func:`scaleup.props.seawater.density_Sharqawy`.
 
     Examples
     --------
@@ -150,6 +150,6 @@ def c_star_O2_Garcia_Gordon(T, salinity=0.0, pressure=P_ATM, o2_fraction=AIR_O2_
     Ts = np.log((298.15 - t68) / (273.15 + t68))
     ln_c0 = (sum(a * Ts ** i for i, a in enumerate(_GG_A))
              + S * sum(b * Ts ** i for i, b in enumerate(_GG_B)) + _GG_C0 * S ** 2)
-    rho = np.asarray(medium.density_Sharqawy(T, salinity))
+    rho = np.asarray(seawater.density_Sharqawy(T, salinity))
     umol_per_kg = np.exp(ln_c0) * (y / AIR_O2_FRACTION) * _pressure_factor_Benson_Krause(T, P)
     return out(umol_per_kg * 1e-6 * rho, scalar)

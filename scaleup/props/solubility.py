@@ -30,7 +30,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from scaleup.errors import InputError, OutOfRange
-from scaleup.props import water
+from scaleup.props import seawater, water
 from scaleup.props._common import (
     RangeWarning,
     as_array,
@@ -410,7 +410,7 @@ def log_mean_saturation(gas: str, T: float, head_pressure_pa: float, liquid_heig
     0.312
     """
     if density is None:
-        density = float(water.density_Sharqawy(T, salinity) if salinity else water.density(T))
+        density = float(seawater.density_Sharqawy(T, salinity) if salinity else water.density(T))
     check_positive("liquid_height", liquid_height_m, "m", allow_zero=True)
     p_bottom = float(pressure_at_depth(head_pressure_pa, liquid_height_m, density))
     inlet = inlet_fraction

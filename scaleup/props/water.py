@@ -8,8 +8,9 @@ Public API (SI in, SI out; floats or numpy arrays of temperature):
 * :func:`vapour_pressure` ``(T)`` [Pa]: Wagner and Pruss (1993), the IAPWS-95 auxiliary.
 * :func:`heat_capacity` ``(T, P=101325)`` [J/(kg K)]: IAPWS-IF97 region 1.
 * :func:`kinematic_viscosity` ``(T, P=101325)`` [m2/s].
-
-Salt water and media with measured properties are in :mod:`scaleup.props.medium`.
+* :func:`liquid_properties` ``(T, P, salinity, overrides)``: all of them at once for a
+  medium, with a measured value overriding any property, as a :class:`LiquidProperties`
+  record; salt water by :mod:`scaleup.props.seawater`.
 
 The published equations are implemented here rather than called from a library: they are
 short, explicit (no iteration), vectorise over arrays, and keep the runtime free of another
@@ -18,6 +19,8 @@ dependency. The test suite checks them against the IAPWS verification tables and
 """
 
 from __future__ import annotations
+
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -339,3 +342,90 @@ def kinematic_viscosity(T, P=P_ATM):
     """
     scalar = is_scalar(T, P)
     return out(np.asarray(viscosity(T, P)) / np.asarray(density(T, P)), scalar)
+
+
+@dataclass(frozen=True)
+class LiquidProperties:
+    """Properties of a liquid medium at one state, each with where it came from."""
+
+    temperature_k: float
+    pressure_pa: float
+    salinity_kg_kg: float
+    density_kg_m3: float
+    viscosity_pa_s: float
+    surface_tension_n_m: float
+    vapour_pressure_pa: float
+    heat_capacity_j_kg_k: float
+    sources: dict[str, str] = field(default_factory=dict)
+
+    @property
+    def kinematic_viscosity_m2_s(self) -> float:
+        return self.viscosity_pa_s / self.density_kg_m3
+
+
+OVERRIDABLE = ("density", "viscosity", "surface_tension", "vapour_pressure", "heat_capacity")
+
+
+def liquid_properties(T: float, P: float = P_ATM, salinity: float = 0.0,
+                      overrides: dict[str, float] | None = None) -> LiquidProperties:
+    """All properties of a water-based medium at one state, measured values taking precedence.
+
+    Parameters
+    ----------
+    T : float
+        Temperature [K], 273.15 to 373.15.
+    P : float
+        Absolute pressure [Pa], default 101325.
+    salinity : float
+        Salinity [kg/kg]; above zero, density and viscosity come from Sharqawy et al. (2010).
+    overrides : dict, optional
+        Measured values in SI by property name (``density`` [kg/m3], ``viscosity`` [Pa s],
+        ``surface_tension`` [N/m], ``vapour_pressure`` [Pa], ``heat_capacity`` [J/(kg K)]).
+
+    Returns
+    -------
+    LiquidProperties
+        The values [SI, unit in each field name] and, in ``sources``, the method or
+        ``"measured"`` for each.
+
+    Examples
+    --------
+    >>> props = liquid_properties(310.15, overrides={"viscosity": 0.8e-3})
+    >>> props.viscosity_pa_s, props.sources["viscosity"]
+    (0.0008, 'measured')
+    >>> round(props.density_kg_m3, 2)
+    993.34
+    """
+    overrides = dict(overrides or {})
+    unknown = sorted(set(overrides) - set(OVERRIDABLE))
+    if unknown:
+        raise ValueError(f"cannot override {', '.join(unknown)}; choose from "
+                         f"{', '.join(OVERRIDABLE)}")
+    from scaleup.props.seawater import density_Sharqawy, viscosity_Sharqawy  # imports us
+
+    salty = float(salinity) > 0.0
+    computed = {
+        "density": (lambda: density_Sharqawy(T, salinity, P), "Sharqawy et al. (2010)")
+        if salty else (lambda: density(T, P), "IAPWS-IF97"),
+        "viscosity": (lambda: viscosity_Sharqawy(T, salinity, P), "Sharqawy et al. (2010)")
+        if salty else (lambda: viscosity(T, P), "IAPWS 2008"),
+        "surface_tension": (lambda: surface_tension(T), "IAPWS R1-76(2014)"),
+        "vapour_pressure": (lambda: vapour_pressure(T), "Wagner and Pruss (1993)"),
+        "heat_capacity": (lambda: heat_capacity(T, P), "IAPWS-IF97"),
+    }
+    values: dict[str, float] = {}
+    sources: dict[str, str] = {}
+    check_water_temperature(T)
+    for name, (compute, source) in computed.items():
+        if name in overrides:
+            values[name] = float(check_range(name, overrides[name], 0.0, None, "SI"))
+            sources[name] = "measured"
+        else:
+            values[name] = float(compute())
+            sources[name] = source
+    return LiquidProperties(
+        temperature_k=float(T), pressure_pa=float(P), salinity_kg_kg=float(salinity),
+        density_kg_m3=values["density"], viscosity_pa_s=values["viscosity"],
+        surface_tension_n_m=values["surface_tension"],
+        vapour_pressure_pa=values["vapour_pressure"],
+        heat_capacity_j_kg_k=values["heat_capacity"], sources=sources)

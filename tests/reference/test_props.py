@@ -11,7 +11,7 @@ import warnings
 import numpy as np
 import pytest
 
-from scaleup.props import henry, medium, oxygen, salting, solubility, water
+from scaleup.props import henry, oxygen, salting, seawater, solubility, water
 from scaleup.units import M_O2
 
 iapws = pytest.importorskip("iapws")
@@ -89,14 +89,14 @@ def test_sharqawy_density_against_teos10(salinity_g_kg, celsius):
     SA = salinity_g_kg * 35.16504 / 35.0  # reference-composition absolute salinity
     CT = gsw.CT_from_t(SA, celsius, 0.0)
     expected = gsw.rho(SA, CT, 0.0)
-    got = medium.density_Sharqawy(celsius + 273.15, salinity_g_kg / 1000.0)
+    got = seawater.density_Sharqawy(celsius + 273.15, salinity_g_kg / 1000.0)
     assert got == pytest.approx(expected, rel=1e-3)
 
 
 def test_sharqawy_viscosity_seawater_25C():
     # ITTC (2011) fresh water and seawater properties: 0.9589e-3 Pa s at 25 degC, 35 g/kg
     # (from memory); Sharqawy et al. state 1.5 %.
-    assert medium.viscosity_Sharqawy(298.15, 0.035) == pytest.approx(0.9589e-3, rel=0.015)
+    assert seawater.viscosity_Sharqawy(298.15, 0.035) == pytest.approx(0.9589e-3, rel=0.015)
 
 
 # --- oxygen solubility -------------------------------------------------------------------
@@ -125,7 +125,7 @@ def test_garcia_gordon_against_gsw(salinity, celsius):
     # umol/kg; same equation, so agreement to round-off
     T = celsius + 273.15
     c = oxygen.c_star_O2_Garcia_Gordon(T, salinity / 1000.0)
-    rho = medium.density_Sharqawy(T, salinity / 1000.0)
+    rho = seawater.density_Sharqawy(T, salinity / 1000.0)
     assert c / rho * 1e6 == pytest.approx(gsw.O2sol_SP_pt(salinity, celsius), rel=1e-9)
 
 
