@@ -152,6 +152,9 @@ class RunsScreen(WorkScreen):
             return
         if self.detail_timer is not None:
             self.detail_timer.stop()
+        if self.settings.detail_delay_s <= 0:
+            self._read_detail(run["id"])
+            return
         self.detail_timer = self.set_timer(self.settings.detail_delay_s,
                                            lambda: self._read_detail(run["id"]))
 
