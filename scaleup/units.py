@@ -101,6 +101,11 @@ KINDS: dict[str, Kind] = {
         Kind("salinity", "dimensionless", "kg/kg", "a salinity (mass fraction)", "10 g/kg",
              "g/kg", "g/kg"),
         Kind("fraction", "dimensionless", "-", "a fraction", "0.2095", "dimensionless", "-"),
+        Kind("frequency", "1/s", "1/s", "a rate per unit time", "5 1/s", "1/s", "1/s"),
+        Kind("concentration_gradient", "mol/m**4", "mol/m4", "a concentration gradient",
+             "-1e4 mol/m4", "mol/m**4", "mol/m4"),
+        Kind("per_area", "1/m**2", "1/m2", "a reciprocal area such as a cell constant",
+             "3000 1/m2", "1/m**2", "1/m2"),
     ]
 }
 
@@ -163,7 +168,7 @@ def _clean_unit(unit: str) -> str:
     if u in _ALIASES:
         return _ALIASES[u]
     # m3/h, L/min, W/m3, kW/m3, mmol/(L h): spell powers and the litre the pint way
-    u = re.sub(r"(?<![A-Za-z])(c?m|mm|km)([23])(?![0-9])", r"\1**\2", u)
+    u = re.sub(r"(?<![A-Za-z])(c?m|mm|km)([234])(?![0-9])", r"\1**\2", u)
     u = re.sub(r"(?<![A-Za-z])L(?![A-Za-z])", "liter", u)
     u = re.sub(r"\(([^()]*?) ([^()]*?)\)", r"(\1*\2)", u)
     u = u.replace("rpm", "revolution/minute") if u == "rpm" else u

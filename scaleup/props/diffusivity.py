@@ -435,11 +435,16 @@ def compare(solute: str, solvent: str = "water", T=298.15, *, viscosity=None,
     Comparison
         The estimates, their mean, minimum, maximum [m2/s] and spread (max - min) / mean [-].
 
+    Notes
+    -----
+    Where a measured value exists at ``T``, the Stokes-Einstein scaling of it (the same
+    number) is left out so it is not counted twice.
+
     Examples
     --------
     >>> c = compare("O2", "water", 298.15)
-    >>> len(c.estimates), round(c.spread_fraction, 2)
-    (6, 0.22)
+    >>> [e.method for e in c.estimates][:2], round(c.spread_fraction, 2)
+    (['measured', 'wilke-chang'], 0.22)
     """
     scalar = is_scalar(T)
     names = diffusivity_methods(solute, solvent, T, viscosity=viscosity,
@@ -447,6 +452,8 @@ def compare(solute: str, solvent: str = "water", T=298.15, *, viscosity=None,
     if not names:
         raise InputError(f"no diffusivity method applies to {solute} in {solvent}", "solute",
                          solute)
+    if "measured" in names:  # Stokes-Einstein scaling to the same state repeats the value
+        names.remove("stokes-einstein")
     found = tuple(estimate(solute, solvent, T, n, viscosity=viscosity,
                            molar_volume=molar_volume, pressure=pressure) for n in names)
     values = np.array([np.asarray(e.diffusivity_m2_s) for e in found])
