@@ -467,6 +467,100 @@ class Campaign:
     def fluxes(self) -> list[dict]:
         return self.rows("SELECT * FROM flux WHERE deleted_at IS NULL ORDER BY id")
 
+    # ---- correlations (fitting in scaleup.correlate) -------------------------------------
+    def fit_kla(self, where: str | None = None, *, bootstrap: int = 0,
+                bootstrap_kind: str = "runs", **options):
+        """Fit kLa to the selected runs (options of :func:`scaleup.correlate.fit_kla`);
+        returns a :class:`scaleup.correlate.FitReport` with leave-one-vessel-out."""
+        from scaleup.correlate import fit_kla, kla_observations_from_runs, report_fit
+
+        data, skipped = kla_observations_from_runs(self.runs_derived(where))
+        return report_fit(fit_kla(data, **options), data, bootstrap=bootstrap,
+                          bootstrap_kind=bootstrap_kind, selection=where or "", skipped=skipped)
+
+    def fit_sherwood(self, solute: str | None = None, *, bootstrap: int = 0,
+                     bootstrap_kind: str = "runs", **options):
+        """Fit a Sherwood correlation to the flux measurements (of one solute)."""
+        from scaleup.correlate import fit_sherwood, report_fit, sherwood_observations_from_fluxes
+        from scaleup.props.diffusivity import diffusivity
+        from scaleup.props.water import liquid_properties
+
+        rows = self.rows("SELECT f.*, v.name AS vessel FROM flux f LEFT JOIN run r ON r.id = "
+                         "f.run_id LEFT JOIN vessel v ON v.id = r.vessel_id WHERE f.deleted_at "
+                         "IS NULL AND (? IS NULL OR f.solute = ?) ORDER BY f.id", (solute, solute))
+        filled = []
+        for row in rows:  # properties not stored with a flux are those of water at its T
+            water = liquid_properties(row["temperature_k"])
+            gaps = [k for k in ("density_kg_m3", "viscosity_pa_s") if row[k] is None]
+            for key in gaps:
+                row[key] = getattr(water, key)
+            if row["diffusivity_m2_s"] is None:
+                row["diffusivity_m2_s"] = float(diffusivity(row["solute"], "water",
+                                                            row["temperature_k"]))
+                gaps.append(f"diffusivity of {row['solute']}")
+            if gaps:
+                filled.append(row["id"])
+        notes = [f"flux {', '.join(map(str, filled))}: missing liquid properties taken as "
+                 "water's at the measurement temperature"] if filled else []
+        data, skipped = sherwood_observations_from_fluxes(rows)
+        return report_fit(fit_sherwood(data, **options), data, bootstrap=bootstrap,
+                          bootstrap_kind=bootstrap_kind, selection=solute or "",
+                          skipped=skipped, notes=notes)
+
+    def save_fit(self, name: str, report) -> int:
+        """Store a :class:`scaleup.correlate.FitReport` under ``name``; returns its id."""
+        import json
+
+        name = (name or "").strip()
+        if self.rows("SELECT id FROM fit WHERE name = ?", (name,)):
+            raise InputError(f'a fit named "{name}" exists; choose another name', "name", name)
+        result = report.result
+        with self.transaction():
+            fit_id = records.insert(self.conn, "fit", {
+                "name": name, "kind": report.kind, "form": result.form.kind,
+                "method": result.method if result.robust is None else f"robust-{result.robust}",
+                "weights": result.weights, "selection": report.selection,
+                "model_json": json.dumps(report.stored()),
+                "package_version": result.package_version}, actor=self.actor)
+            if report.kind == "kla":  # fit_run marks the fit stale when one of its runs changes
+                self.conn.executemany("INSERT INTO fit_run (fit_id, run_id) VALUES (?, ?)",
+                                      [(fit_id, int(r)) for r in result.run_ids])
+        return fit_id
+
+    def load_fit(self, name: str):
+        """A saved fit: (:class:`scaleup.correlate.FitResult`, its row with ``stale``)."""
+        import json
+
+        from scaleup.correlate import FitResult
+        from scaleup.errors import NotFound
+
+        found = self.rows("SELECT * FROM fit WHERE name = ? AND deleted_at IS NULL", (name,))
+        if not found:
+            known = ", ".join(f["name"] for f in self.fits()) or "none saved yet"
+            raise NotFound(f'no fit named "{name}" (saved fits: {known})')
+        return FitResult.from_dict(json.loads(found[0]["model_json"])), found[0]
+
+    def fits(self) -> list[dict]:
+        """Saved fits (without their model), oldest first."""
+        return self.rows("SELECT id, name, kind, form, method, weights, selection, stale, "
+                         "package_version, created_at FROM fit WHERE deleted_at IS NULL "
+                         "ORDER BY id")
+
+    def compare(self, fits: dict, published: list[str], where: str | None = None):
+        """Fitted (name -> FitResult) and published kLa correlations on the selected runs:
+        (comparison rows, warnings)."""
+        from scaleup.correlate import (
+            compare_correlations,
+            kla_observations_from_runs,
+            published_correlation,
+        )
+
+        data, skipped = kla_observations_from_runs(self.runs_derived(where))
+        models = {**fits, **{key: published_correlation(key) for key in published}}
+        warnings = [f"{len(skipped)} run(s) without kLa or operating point left out"] \
+            if skipped else []
+        return compare_correlations(models, data), warnings
+
     # ---- files ---------------------------------------------------------------------------
     def import_runs(self, path, **options) -> dict:
         from scaleup.store.importers import import_runs

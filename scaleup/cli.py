@@ -31,6 +31,9 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "power": ("scaleup.commands.power:power_command", "Power, gassed power, regime, blend time."),
     "props": ("scaleup.commands.props:props_group", "Water properties, gas solubility, diffusivity."),
     "transport": ("scaleup.commands.transport:transport_group", "Fluxes, Fick's law, kL models."),
+    "fit": ("scaleup.commands.fit:fit_group", "Fit kLa or Sherwood correlations to runs."),
+    "compare": ("scaleup.commands.fit:compare_command", "Compare fitted and published correlations."),
+    "predict": ("scaleup.commands.fit:predict_command", "Predict kLa with intervals from a fit."),
 }
 
 

@@ -8,7 +8,9 @@ Pure layer: numpy arrays in, small frozen dataclasses out; no I/O.
 * :mod:`~scaleup.correlate.fitting`: :func:`fit`, :func:`fit_kla`, :func:`fit_sherwood`,
   :class:`FitResult` (intervals, diagnostics, JSON round trip);
 * :mod:`~scaleup.correlate.resampling`: vectorised bootstrap over runs or vessels;
-* :mod:`~scaleup.correlate.validation`: leave-one-vessel-out, scale bias, comparisons;
+* :mod:`~scaleup.correlate.validation`: leave-one-vessel-out, scale bias, comparisons,
+  :class:`FitReport`;
+* :mod:`~scaleup.correlate.runs`: per-run records of the service layer to observations;
 * :mod:`~scaleup.correlate.domain`: fitted and stated domains, extrapolation distance.
 """
 
@@ -40,18 +42,26 @@ from scaleup.correlate.published import (
     sherwood_correlations,
 )
 from scaleup.correlate.resampling import BootstrapResult, attach_bootstrap, bootstrap
+from scaleup.correlate.runs import (
+    kla_observations_from_runs,
+    sherwood_observations_from_fluxes,
+)
 from scaleup.correlate.validation import (
+    FitReport,
     LeaveOneVesselOut,
     ScaleBias,
     compare_correlations,
     leave_one_vessel_out,
+    report_fit,
 )
 
 __all__ = [
-    "BootstrapResult", "Domain", "Extrapolation", "FitDidNotConverge", "FitResult",
+    "BootstrapResult", "Domain", "Extrapolation", "FitDidNotConverge", "FitReport", "FitResult",
     "LeaveOneVesselOut", "ModelForm", "Observations", "Prediction", "PublishedCorrelation",
     "ScaleBias", "attach_bootstrap", "bootstrap", "compare_correlations", "domain_from_runs",
     "error_measures", "fit", "fit_kla", "fit_sherwood", "kl_correlations", "kla",
-    "kla_correlations", "kla_form", "kla_methods", "kla_observations", "leave_one_vessel_out",
-    "published_correlation", "sherwood", "sherwood_correlations", "sherwood_observations", "stated_domain",
+    "kla_correlations", "kla_form", "kla_methods", "kla_observations",
+    "kla_observations_from_runs", "leave_one_vessel_out", "published_correlation", "report_fit",
+    "sherwood", "sherwood_correlations", "sherwood_observations",
+    "sherwood_observations_from_fluxes", "stated_domain",
 ]

@@ -40,6 +40,8 @@ class Extrapolation:
         ``x / high`` above, ``low / x`` below.
     unchecked : tuple of str
         Variables of the domain the points did not give (not checked).
+    source : str
+        ``"fitted"`` or ``"stated"``, as the domain checked against.
     """
 
     extrapolated: np.ndarray
@@ -47,16 +49,17 @@ class Extrapolation:
     distance_ratio: np.ndarray
     range_factor: dict[str, np.ndarray]
     unchecked: tuple[str, ...] = ()
+    source: str = "fitted"
 
-    def messages(self, units: Mapping[str, str] | None = None) -> list[list[str]]:
+    def messages(self) -> list[list[str]]:
         """Per point, one sentence per way it extrapolates (empty list when inside)."""
-        units = units or {}
         out: list[list[str]] = []
         for i in range(len(self.extrapolated)):
             lines = []
             for name, factor in self.range_factor.items():
                 if factor[i] > 1 + _TOLERANCE:
-                    lines.append(f"{name} is {factor[i]:.3g} times beyond its fitted range")
+                    lines.append(f"{name} is {factor[i]:.3g} times beyond its {self.source} "
+                                 "range")
             if np.isfinite(self.distance_ratio[i]) and self.distance_ratio[i] > 1 + _TOLERANCE:
                 lines.append(f"the combination of variables lies {self.distance_ratio[i]:.3g} "
                              "times farther from the data than any fitted run "
@@ -147,7 +150,7 @@ class Domain:
             outside |= np.nan_to_num(ratio, nan=0.0) > 1 + _TOLERANCE
         else:
             ratio = np.full(n, np.nan)
-        return Extrapolation(outside, distance, ratio, factors, tuple(unchecked))
+        return Extrapolation(outside, distance, ratio, factors, tuple(unchecked), self.source)
 
     def to_dict(self) -> dict:
         """A plain dict (JSON-safe) that :meth:`from_dict` reads back."""

@@ -155,8 +155,10 @@ class FitResult:
                 continue
             i = free[name]
             theta, se = float(self.params[i]), float(self.stderr[i])
-            t_value = theta / se if se > 0 else float("inf")
-            p_value = float(2 * stats.t.sf(abs(t_value), self.df_resid))
+            # an exact fit (no residual scatter) has no t statistic
+            t_value = theta / se if se > 0 else None
+            p_value = (None if t_value is None
+                       else float(2 * stats.t.sf(abs(t_value), self.df_resid)))
             lo, hi = float(ci[i, 0]), float(ci[i, 1])
             if log:
                 value = float(np.exp(theta))
@@ -252,7 +254,7 @@ class FitResult:
             "df_resid": self.df_resid, "parameters": self.parameters(),
             "statistics": dict(self.statistics), "domain": self.domain.to_dict(),
             "run_ids": [_plain_id(r) for r in self.run_ids],
-            "diagnostics": {k: np.asarray(v).tolist() for k, v in self.diagnostics.items()},
+            "diagnostics": {k: _json_list(v) for k, v in self.diagnostics.items()},
             "warnings": list(self.warnings), "bootstrap": self.bootstrap,
             "package_version": self.package_version, "created_at": self.created_at,
         }
@@ -274,13 +276,27 @@ class FitResult:
                    float(data["residual_variance"]), float(data["prediction_weight"]),
                    int(data["n_runs"]), dict(data["statistics"]),
                    Domain.from_dict(data["domain"]), tuple(data.get("run_ids", ())),
-                   {k: np.asarray(v) for k, v in data.get("diagnostics", {}).items()},
+                   {k: _array_from_json(v) for k, v in data.get("diagnostics", {}).items()},
                    tuple(data.get("warnings", ())), data.get("bootstrap"),
                    data.get("package_version", ""), data.get("created_at", ""))
 
 
 def _plain_id(value):
     return value.item() if hasattr(value, "item") else value
+
+
+def _json_list(values) -> list:
+    """Array to a list with NaN and inf as None (strict JSON has no NaN)."""
+    a = np.asarray(values)
+    if a.dtype.kind == "f":
+        return [x if np.isfinite(x) else None for x in a.tolist()]
+    return a.tolist()
+
+
+def _array_from_json(values: list) -> np.ndarray:
+    if any(v is None for v in values):
+        return np.array([np.nan if v is None else v for v in values], dtype=float)
+    return np.asarray(values)
 
 
 def fit_weights(form: ModelForm, data: Observations, weights: str, space: str) -> np.ndarray:

@@ -237,3 +237,97 @@ def compare_correlations(models: Mapping[str, FitResult | PublishedCorrelation],
         row.update(error_measures(predicted, data.response))
         rows.append(row)
     return sorted(rows, key=lambda r: r["rmse_log"])
+
+
+@dataclass(frozen=True)
+class FitReport:
+    """A fit with what an engineer needs beside it: LOVO, influential runs, left-out runs."""
+
+    result: FitResult
+    data: Observations
+    loo_vessel: LeaveOneVesselOut | None
+    selection: str = ""
+    skipped: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
+
+    @property
+    def kind(self) -> str:
+        return "sherwood" if self.result.form.response_name == "sherwood" else "kla"
+
+    @property
+    def warnings(self) -> list[str]:
+        out = list(self.result.warnings) + list(self.notes)
+        if self.skipped:
+            out.append(f"{len(self.skipped)} selected record(s) left out: "
+                       + "; ".join(self.skipped[:5]) + (" ..." if len(self.skipped) > 5 else ""))
+        if self.loo_vessel is not None:
+            out.extend(self.loo_vessel.messages)
+        return out
+
+    def influential_runs(self, most: int = 5) -> list[dict]:
+        """Runs whose Cook's distance exceeds 4/n, largest first (at most ``most``)."""
+        d = self.result.diagnostics
+        cooks = np.nan_to_num(np.asarray(d["cooks_distance"], float), nan=np.inf)
+        order = [i for i in np.argsort(-cooks) if cooks[i] > 4.0 / self.result.n_runs][:most]
+        return [{"run_id": self.result.run_ids[i], "cooks_distance": float(cooks[i]),
+                 "leverage": float(d["leverage"][i]),
+                 "studentized_residual": float(d["studentized_external"][i]),
+                 "flagged_by_robust_fit": bool(d["flagged"][i])} for i in order]
+
+    def summary(self) -> dict:
+        """The fit as the command line's JSON and the workbench show it."""
+        r = self.result
+        s = r.statistics
+        return {"kind": self.kind, "equation": r.form.equation(), "form": r.form.kind,
+                "power_basis": r.form.power_basis if self.kind == "kla" else None,
+                "method": r.method, "weights": r.weights, "robust": r.robust,
+                "parameters": r.parameters(), "r2_log": s["r2_log"], "rmse_log": s["rmse_log"],
+                "aic": s["aic"], "bic": s["bic"], "n_runs": r.n_runs, "statistics": s,
+                "domain": r.domain.to_dict(),
+                "loo_vessel": None if self.loo_vessel is None else self.loo_vessel.to_dict(),
+                "bootstrap": r.bootstrap, "influential_runs": self.influential_runs(),
+                "selection": self.selection, "warnings": self.warnings}
+
+    def stored(self) -> dict:
+        """What a saved fit keeps: the full fit (reloadable) plus validation and selection."""
+        return {**self.result.to_dict(), "selection": self.selection,
+                "loo_vessel": None if self.loo_vessel is None else self.loo_vessel.to_dict(),
+                "skipped": list(self.skipped)}
+
+
+def report_fit(result: FitResult, data: Observations, *, bootstrap: int = 0,
+               bootstrap_kind: str = "runs", seed: int | None = 0, selection: str = "",
+               skipped: tuple[str, ...] | list[str] = (),
+               notes: tuple[str, ...] | list[str] = ()) -> FitReport:
+    """Bundle a fit with leave-one-vessel-out and, if asked, a bootstrap summary.
+
+    Parameters
+    ----------
+    result : FitResult
+        The fit on all runs.
+    data : Observations
+        Its runs.
+    bootstrap : int
+        Number of bootstrap resamples (0: none).
+    bootstrap_kind : str
+        ``"runs"`` or ``"vessels"``.
+    seed : int, optional
+        Bootstrap seed.
+    selection : str
+        The filter that chose the runs (recorded with a saved fit).
+    skipped : sequence of str
+        Records left out and why.
+    notes : sequence of str
+        Other remarks on the data (e.g. properties filled in), shown with the warnings.
+
+    Returns
+    -------
+    FitReport
+    """
+    from scaleup.correlate.resampling import attach_bootstrap
+
+    if bootstrap:
+        result = attach_bootstrap(result, data, kind=bootstrap_kind, n_resamples=bootstrap,
+                                  seed=seed)
+    lovo = leave_one_vessel_out(result, data) if data.vessel is not None else None
+    return FitReport(result, data, lovo, selection, tuple(skipped), tuple(notes))
