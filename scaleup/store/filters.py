@@ -11,7 +11,9 @@ a parameter; nothing typed is ever pasted into SQL. Allowed:
   ``temperature >= 30 degC``), converted to the column's SI unit.
 
 Anything else (semicolons, function calls, subqueries, ``attach``, pragmas) is refused with a
-message that says what was not understood and where.
+message that says what was not understood and where. The SQL produced is then run under the
+store's read-only authorizer (:func:`scaleup.store.db.guarded_reads`) as a second line of
+defence.
 """
 
 from __future__ import annotations
@@ -47,6 +49,12 @@ _TOKEN = re.compile(r"""
   | (?P<bad>.)
 """, re.VERBOSE)
 _KEYWORDS = {"and", "or", "not", "between", "in", "like", "is", "null"}
+# words that mean someone typed SQL rather than a filter: named in the refusal
+_SQL_WORDS = {"select", "drop", "delete", "insert", "update", "attach", "detach", "pragma",
+              "create", "alter", "replace", "vacuum", "from", "union", "load_extension",
+              "begin", "commit", "rollback", "savepoint", "exists", "with", "case", "cast"}
+MAX_LENGTH = 2000
+MAX_DEPTH = 40  # nested parentheses / nots: far beyond what a person writes
 _SQL_OPS = {"=": "=", "==": "=", "!=": "!=", "<>": "!=", "<": "<", "<=": "<=", ">": ">",
             ">=": ">="}
 
@@ -65,7 +73,9 @@ def tokenize(text: str) -> list[Token]:
         if kind == "ws":
             continue
         if kind == "bad":
-            raise InputError(f'cannot use "{m.group()}" at position {m.start() + 1} of the '
+            what = ("a semicolon: a filter is one condition, not SQL statements"
+                    if m.group() == ";" else f'"{m.group()}"')
+            raise InputError(f"cannot use {what} at position {m.start() + 1} of the "
                              f"filter; {_HELP}", "filter", text)
         out.append(Token(kind, m.group(), m.start()))
     return out
@@ -80,7 +90,13 @@ class _Parser:
         self.text = text
         self.tokens = tokenize(text)
         self.i = 0
+        self.depth = 0
         self.params: list = []
+
+    def nest(self) -> None:
+        self.depth += 1
+        if self.depth > MAX_DEPTH:
+            self.fail(f"nested more than {MAX_DEPTH} levels deep")
 
     def fail(self, what: str):
         pos = self.tokens[self.i].pos + 1 if self.i < len(self.tokens) else len(self.text)
@@ -123,12 +139,17 @@ class _Parser:
 
     def factor(self) -> str:
         if self.word("not"):
-            return f"NOT ({self.factor()})"
+            self.nest()
+            inner = self.factor()
+            self.depth -= 1
+            return f"NOT ({inner})"
         t = self.peek()
         if t is not None and t.kind == "paren" and t.text == "(":
             self.i += 1
+            self.nest()
             inner = self.expr()
             self.expect("paren", ")")
+            self.depth -= 1
             return f"({inner})"
         return self.comparison()
 
@@ -138,6 +159,12 @@ class _Parser:
             self.fail("expected a column name")
         name = ALIASES.get(t.text.lower(), t.text.lower())
         if name not in COLUMNS:
+            following = self.tokens[self.i + 1] if self.i + 1 < len(self.tokens) else None
+            if following is not None and following.text == "(":
+                self.fail(f'"{t.text}(...)" is a function call; a filter cannot call '
+                          "functions")
+            if t.text.lower() in _SQL_WORDS:
+                self.fail(f'"{t.text}" is SQL; a filter only compares columns with values')
             self.fail(f'unknown column "{t.text}"')
         self.i += 1
         return name
@@ -184,6 +211,10 @@ class _Parser:
         if t.kind == "string":
             return _unquote(t.text)
         if t.kind != "number":
+            self.i -= 1
+            if t.text.lower() in _SQL_WORDS:
+                self.fail(f'"{t.text}" is SQL; a filter compares with plain values, not '
+                          "subqueries")
             self.fail(f'expected a number or a quoted text, not "{t.text}"')
         value = float(t.text)
         unit_words = []
@@ -217,7 +248,10 @@ def compile_filter(text: str | None) -> tuple[str, list]:
     """
     if text is None or not text.strip():
         return "1", []
-    if len(text) > 2000:
-        raise InputError("is longer than 2000 characters", "filter", text[:40] + "...")
+    if not isinstance(text, str):
+        raise InputError(f"expected text, got {type(text).__name__}", "filter", text)
+    if len(text) > MAX_LENGTH:
+        raise InputError(f"is longer than {MAX_LENGTH} characters", "filter",
+                         text[:40] + "...")
     parser = _Parser(text)
     return parser.parse(), parser.params

@@ -14,35 +14,89 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from typing import Any
 
-from scaleup.errors import ConflictError, InputError, NotFound
+from scaleup.errors import ConflictError, InputError, NotFound, StoreError
+from scaleup.store import db
 
 # tables whose rows are soft-deleted and versioned
 VERSIONED = ("vessel", "medium", "run", "curve", "offgas", "flux", "fit", "study")
+_IDENTIFIER = re.compile(r"^[a-z_][a-z0-9_]*$")
 _savepoint_counter = 0
 
 
 @contextmanager
 def transaction(conn: sqlite3.Connection) -> Iterator[sqlite3.Connection]:
-    """All or nothing: commit on success, roll back on any exception (KeyboardInterrupt too)."""
+    """All or nothing: commit on success, roll back on any exception (KeyboardInterrupt too).
+
+    The outermost call takes the write lock at once (``BEGIN IMMEDIATE``), so two programs
+    never both read a record and then race to write it; waiting for the other one's lock is
+    bounded by the busy timeout, after which :class:`StoreError` says the file is busy.
+    """
     global _savepoint_counter
     _savepoint_counter += 1
     name = f"sp{_savepoint_counter}"
     outer = not conn.in_transaction
     if outer:
-        conn.execute("BEGIN IMMEDIATE")
+        try:
+            conn.execute("BEGIN IMMEDIATE")
+        except sqlite3.OperationalError as exc:
+            raise _store_error(exc) from exc
     conn.execute(f"SAVEPOINT {name}")
     try:
         yield conn
-    except BaseException:
-        conn.execute(f"ROLLBACK TO {name}")
-        conn.execute(f"RELEASE {name}")
-        if outer:
-            conn.execute("ROLLBACK")
+    except BaseException as exc:
+        _roll_back(conn, name, outer)
+        if isinstance(exc, sqlite3.OperationalError):
+            raise _store_error(exc) from exc
         raise
     else:
         conn.execute(f"RELEASE {name}")
         if outer:
-            conn.execute("COMMIT")
+            try:
+                conn.execute("COMMIT")
+            except sqlite3.OperationalError as exc:
+                _roll_back(conn, None, True)
+                raise _store_error(exc) from exc
+
+
+def _roll_back(conn: sqlite3.Connection, savepoint: str | None, outer: bool) -> None:
+    """Undo to the savepoint (and the whole transaction if outermost), whatever SQLite did.
+
+    Some errors (a full disk, an interrupt) make SQLite roll back on its own; then there is no
+    savepoint left to roll back to, and trying would hide the real error.
+    """
+    if not conn.in_transaction:
+        return
+    try:
+        if savepoint is not None:
+            conn.execute(f"ROLLBACK TO {savepoint}")
+            conn.execute(f"RELEASE {savepoint}")
+        if outer:
+            conn.execute("ROLLBACK")
+    except sqlite3.OperationalError:
+        if outer and conn.in_transaction:
+            conn.execute("ROLLBACK")
+
+
+def _store_error(exc: sqlite3.OperationalError) -> StoreError:
+    """A readable reason for what SQLite refused (busy, disk full, read-only ...)."""
+    text = str(exc).lower()
+    if db.is_busy(exc):
+        return StoreError(db.busy_message())
+    if "full" in text:
+        return StoreError("the disk is full; nothing was written")
+    if "readonly" in text or "read-only" in text:
+        return StoreError("the campaign file has become read-only; nothing was written")
+    if "disk i/o" in text:
+        return StoreError("the disk reported an error while writing; nothing was written. "
+                          "Run `scaleup check` and keep a backup")
+    return StoreError(f"the campaign could not be written ({exc}); nothing was written")
+
+
+def _name(identifier: str) -> str:
+    """A table or column name, checked: names are pasted into SQL, values never are."""
+    if not isinstance(identifier, str) or not _IDENTIFIER.match(identifier):
+        raise InputError(f"{identifier!r} is not a known field name", "field")
+    return identifier
 
 
 def rows(conn: sqlite3.Connection, sql: str, params: tuple | dict = ()) -> list[dict]:
@@ -51,9 +105,20 @@ def rows(conn: sqlite3.Connection, sql: str, params: tuple | dict = ()) -> list[
     return [dict(zip(names, r, strict=True)) for r in cur.fetchall()]
 
 
+def read_rows(conn: sqlite3.Connection, sql: str, params: tuple | list | dict = ()) -> list[dict]:
+    """Run a read that carries a user's filter under the read-only authorizer.
+
+    The marker comment gives these statements their own entries in the statement cache, so a
+    guarded read is always prepared (and so authorized) under the guard.
+    """
+    with db.guarded_reads(conn):
+        return rows(conn, "/* guarded read */ " + sql,
+                    tuple(params) if isinstance(params, list) else params)
+
+
 def get(conn: sqlite3.Connection, table: str, record_id: int, *,
         include_deleted: bool = False) -> dict:
-    found = rows(conn, f"SELECT * FROM {table} WHERE id = ?", (record_id,))
+    found = rows(conn, f"SELECT * FROM {_name(table)} WHERE id = ?", (record_id,))
     if not found or (not include_deleted and found[0].get("deleted_at")):
         raise NotFound(f"{table} {record_id} does not exist"
                        + (" (it is deleted; restore it first)" if found else ""))
@@ -77,8 +142,8 @@ def _dump(record: dict | None) -> str | None:
 def insert(conn: sqlite3.Connection, table: str, values: dict[str, Any], *,
            actor: str = "", action: str = "insert") -> int:
     """Insert one record and audit it; returns its id."""
-    columns = list(values)
-    sql = (f"INSERT INTO {table} ({', '.join(columns)}) "
+    columns = [_name(c) for c in values]
+    sql = (f"INSERT INTO {_name(table)} ({', '.join(columns)}) "
            f"VALUES ({', '.join('?' for _ in columns)})")
     with transaction(conn):
         try:
@@ -103,7 +168,7 @@ def update(conn: sqlite3.Connection, table: str, record_id: int, changes: dict[s
         changes = {k: v for k, v in changes.items() if old.get(k) != v}
         if not changes:
             return old
-        sets = ", ".join(f"{c} = ?" for c in changes)
+        sets = ", ".join(f"{_name(c)} = ?" for c in changes)
         extra = ", row_version = row_version + 1"
         if "updated_at" in old:
             extra += ", updated_at = strftime('%Y-%m-%dT%H:%M:%fZ', 'now')"
