@@ -146,7 +146,7 @@ class MeasuredSeries:
     temperatures: tuple[float, ...]
     values: tuple[float, ...]
     source: str
-    formula: Callable[[float], float] | None = None
+    formula: Callable | None = None  # vectorised: array of K -> array of m2/s
 
 
 def _series(solute: str, celsius: tuple[float, ...], cm2_s_e5: tuple[float, ...],
@@ -155,7 +155,7 @@ def _series(solute: str, celsius: tuple[float, ...], cm2_s_e5: tuple[float, ...]
                           tuple(v * 1e-9 for v in cm2_s_e5), source)  # 1e-5 cm2/s = 1e-9 m2/s
 
 
-def _han_bartels(T: float) -> float:
+def _han_bartels(T):
     """Han and Bartels (1996) interpolation formula for O2 in H2O [m2/s], T in K."""
     return 10.0 ** (-4.410 + 773.8 / T - (506.4 / T) ** 2) * 1e-4  # cm2/s to m2/s
 

@@ -102,7 +102,7 @@ def diffusivity_measured(solute: str, T=298.15):
     T = check_range("temperature", T, *measured_span(solute), "K",
                     f"the measured {solute} data ({series.source})")
     if series.formula is not None:
-        return out(np.vectorize(series.formula, otypes=[float])(T), scalar)
+        return out(np.asarray(series.formula(T), dtype=float), scalar)
     if len(series.temperatures) == 1:
         return out(np.full(T.shape, series.values[0]), scalar)
     inverse = 1.0 / np.asarray(series.temperatures)[::-1]  # increasing for np.interp
