@@ -619,6 +619,118 @@ class Campaign:
                                  "undone here")
         return {"table": table, "record_id": record_id, "undid": action}
 
+    # ---- scale-up studies (the engine is scaleup.scaling; here: names to objects) --------
+    def kla_model(self, correlation: str | None, coalescence: str = "coalescing"):
+        """(KlaModel, fit id): a saved fit by name, else a published key, else van't Riet."""
+        import json
+
+        from scaleup.correlate.fitting import FitResult
+        from scaleup.scaling.correlation import KlaModel, default_published
+
+        if correlation is None:
+            return KlaModel.from_published(default_published(coalescence)), None
+        found = self.rows("SELECT id, model_json FROM fit WHERE name = ? AND deleted_at IS NULL",
+                          (correlation,))
+        if found:
+            fit = FitResult.from_dict(json.loads(found[0]["model_json"]))
+            return KlaModel.from_fit(fit, correlation), found[0]["id"]
+        return KlaModel.from_published(correlation), None
+
+    def scale_pilot(self, *, run_id: int | None = None, vessel: str | None = None,
+                    speed: Any = None, gas_flow: Any = None, temperature: Any = "30 degC",
+                    medium: str | None = None):
+        """(PilotPoint, Liquid) of a stored run, or of a stored vessel at a speed and gas flow
+        (text with units or SI), with water at the temperature unless a medium is named."""
+        from scaleup import units
+        from scaleup.conditions import liquid_for, vessel_from_row
+        from scaleup.scaling.evaluate import Liquid
+        from scaleup.scaling.rules import PilotPoint
+
+        if run_id is not None:
+            rc = self.run_conditions(run_id)
+            med = self.medium(rc.run["medium_id"], include_deleted=True)
+            liquid = Liquid(rc.run["temperature_k"], rc.liquid.density_kg_m3,
+                            rc.liquid.viscosity_pa_s, rc.liquid.surface_tension_n_m,
+                            med["coalescence"], tuple(med["salts"].items()))
+            return PilotPoint(rc.vessel, rc.run["speed_rps"], rc.run["gas_flow_mol_s"],
+                              rc.run.get("kla_per_s"), f"run {run_id}"), liquid
+        if vessel is None or speed is None or gas_flow is None:
+            raise InputError("give a run, or a vessel with a speed and a gas flow", "pilot")
+        v = vessel_from_row(self.vessel(vessel))
+        t = units.parse(temperature, "temperature", "temperature")
+        med = self.medium(medium) if medium else {"coalescence": "coalescing", "salts": {}}
+        props = liquid_for(med, t, v.head_pressure)
+        liquid = Liquid(t, props.density_kg_m3, props.viscosity_pa_s, props.surface_tension_n_m,
+                        med["coalescence"], tuple(med["salts"].items()))
+        n = units.parse(speed, "speed", "speed")
+        flow = units.parse(gas_flow, "gas_flow", "gas flow", liquid_volume_m3=v.volume,
+                           temperature_k=t, pressure_pa=v.head_pressure)
+        return PilotPoint(v, n, flow, None, f"vessel {vessel}"), liquid
+
+    def scale_study(self, pilot: dict, *, to_volume: float | None = None,
+                    to_vessel: str | None = None, correlation: str | None = None,
+                    save: str | None = None, **options) -> dict:
+        """Compare the scale-up rules from a pilot (:meth:`scale_pilot` arguments) to a
+        volume (geometrically similar, m3) or a stored vessel; ``options`` go to
+        :func:`scaleup.scaling.study.scale_study` (process, limits, rules, gas_rule)."""
+        from scaleup.conditions import vessel_from_row
+        from scaleup.hydro.geometry import scale_to_volume
+        from scaleup.scaling import study
+
+        point, liquid = self.scale_pilot(**pilot)
+        if (to_volume is None) == (to_vessel is None):
+            raise InputError("give exactly one of a target volume and a target vessel", "target")
+        target = (scale_to_volume(point.vessel, to_volume) if to_vessel is None
+                  else vessel_from_row(self.vessel(to_vessel)))
+        model, fit_id = self.kla_model(correlation, liquid.coalescence)
+        inputs, results = study.scale_study(point, target, liquid, model=model, **options)
+        inputs["pilot_source"] = {k: v for k, v in pilot.items() if v is not None}
+        if save:
+            results["study_id"] = self.save_study(save, "scale", inputs, results, fit_id)
+        return results
+
+    def design_study(self, *, vessel: Any, liquid, correlation: str | None = None,
+                     save: str | None = None, **options) -> dict:
+        """Duty-driven design of a vessel (a stored name or a hydro Vessel) for a broth;
+        ``options`` go to :func:`scaleup.scaling.study.design_study`."""
+        from scaleup.conditions import vessel_from_row
+        from scaleup.scaling import study
+
+        v = vessel_from_row(self.vessel(vessel)) if isinstance(vessel, (str, int)) else vessel
+        model, fit_id = self.kla_model(correlation, liquid.coalescence)
+        inputs, results = study.design_study(v, liquid, model=model, **options)
+        if save:
+            results["study_id"] = self.save_study(save, "design", inputs, results, fit_id)
+        return results
+
+    def save_study(self, name: str, kind: str, inputs: dict, results: dict,
+                   fit_id: int | None = None) -> int:
+        """Save a study with all its inputs; returns its id."""
+        import json
+
+        from scaleup.scaling.study import package_version, plain
+
+        if self.rows("SELECT id FROM study WHERE name = ? AND deleted_at IS NULL", (name,)):
+            raise InputError(f"a study named {name!r} exists; choose another name", "name", name)
+        values = {"name": name, "kind": kind,
+                  "inputs_json": json.dumps(plain(inputs), allow_nan=False),
+                  "results_json": json.dumps(plain(results), allow_nan=False),
+                  "fit_id": fit_id, "package_version": package_version()}
+        with self.transaction():
+            return records.insert(self.conn, "study", values, actor=self.actor)
+
+    def study(self, name: str) -> dict:
+        """A saved study with its ``inputs`` and ``results`` decoded."""
+        import json
+
+        found = self.rows("SELECT * FROM study WHERE name = ? AND deleted_at IS NULL", (name,))
+        if not found:
+            raise InputError(f"no study {name!r}", "study", name)
+        row = found[0]
+        row["inputs"] = json.loads(row.pop("inputs_json"))
+        row["results"] = json.loads(row.pop("results_json"))
+        return row
+
     # ---- overview ------------------------------------------------------------------------
     def summary(self) -> dict:
         count = lambda t: self.rows(f"SELECT count(*) AS n FROM {t} WHERE deleted_at IS NULL")[0]["n"]  # noqa: E731

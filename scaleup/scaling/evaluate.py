@@ -248,6 +248,9 @@ def evaluate(vessel: Vessel, speed, gas_flow, liquid: Liquid, process: Process,
     motor = np.asarray(op.power, float) / process.drive_efficiency
     margins = _margins(op, limits, process, design_kla, kla_req, load, removal, motor, volume,
                        g, args, shape)
+    if np.any(pg <= 0):
+        notes.append("the gassed-power correlation gives no power at some points (deeply "
+                     "flooded, far outside its range): kLa there is taken as nil")
     if process.o2_fraction > oxygen.AIR_O2_FRACTION + 1e-6:
         notes.append(f"inlet gas with {process.o2_fraction:.3g} O2 (enriched): see the "
                      "oxygen caution")

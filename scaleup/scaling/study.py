@@ -24,6 +24,33 @@ ESTIMATE_NOTE = ("Projections are estimates from correlations; the prediction in
                  "probabilities say how uncertain, not how wrong, they can be.")
 
 
+def plain(value):
+    """JSON-safe copy: numpy scalars and arrays to Python, NaN and infinities to None."""
+    if isinstance(value, dict):
+        return {str(k): plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [plain(v) for v in value]
+    if isinstance(value, np.ndarray):
+        return plain(value.tolist())
+    if isinstance(value, np.generic):
+        return plain(value.item())
+    if isinstance(value, float) and not np.isfinite(value):
+        return None
+    return value
+
+
+def package_version() -> str:
+    """The installed version of this package (recorded with every saved study)."""
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("scaleup")
+    except PackageNotFoundError:
+        from scaleup import __version__
+
+        return __version__
+
+
 def _f(x) -> float:
     return float(np.asarray(x, float).reshape(-1)[0]) if np.size(x) else float("nan")
 

@@ -1,0 +1,83 @@
+"""Duty-driven design: the optimum meets the duty and beats every feasible grid point."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from scaleup.errors import InputError
+from scaleup.hydro.geometry import scale_to_volume, standard_vessel
+from scaleup.scaling import compression
+from scaleup.scaling.correlation import KlaModel
+from scaleup.scaling.design import design
+from scaleup.scaling.evaluate import Limits, Liquid, Process, evaluate
+from scaleup.scaling.oxygen import otr_capacity
+
+WATER_30C = Liquid(303.15, 995.65, 0.797e-3, 0.0712)
+MODEL = KlaModel.from_published("vant-riet-coalescing")
+VESSEL = scale_to_volume(standard_vessel(1.0, count=2, aspect_ratio=2.0), 40.0)
+LIMITS = Limits(max_tip_speed=7.0, min_flooding_margin=0.2)
+
+
+@pytest.fixture(scope="module", params=[0.5, 0.9])
+def solved(request):
+    process = Process(our=40 / 3600, confidence=request.param)
+    return process, design(VESSEL, WATER_30C, process, MODEL, LIMITS, grid=(30, 30),
+                           risk_draws=20_000, map_draws=500)
+
+
+def test_optimum_is_feasible_and_meets_the_duty(solved):
+    process, d = solved
+    assert d.feasible
+    ev = evaluate(VESSEL, d.speed, d.gas_flow, WATER_30C, process, MODEL, LIMITS)
+    assert bool(ev.feasible())
+    # OTR capacity at the design kLa (median or the confidence quantile) covers the duty
+    cap = otr_capacity(ev.kla_design, VESSEL.volume, d.gas_flow, ev.solubility, ev.c_liquid)
+    assert float(cap.otr) >= process.our * (1 - 1e-6)
+    assert "duty" in d.binding
+
+
+def test_no_feasible_grid_point_has_lower_total_power(solved):
+    _, d = solved
+    w = d.window
+    assert w.feasible.any()
+    best_grid = np.min(np.where(w.feasible, w.total_power, np.inf))
+    assert float(d.evaluation.total_power) <= best_grid * (1 + 1e-9)
+
+
+def test_total_power_is_agitator_plus_compressor(solved):
+    process, d = solved
+    ev = d.evaluation
+    assert float(ev.agitator_power) == pytest.approx(
+        float(ev.op.gassed_power) / process.drive_efficiency, rel=1e-12)
+    assert float(ev.compressor_power) == pytest.approx(float(compression.gas_compression_power(
+        VESSEL, d.gas_flow, WATER_30C.density)), rel=1e-12)
+    assert float(ev.total_power) == pytest.approx(float(ev.agitator_power)
+                                                  + float(ev.compressor_power), rel=1e-12)
+
+
+def test_probability_at_the_optimum_matches_the_confidence(solved):
+    process, d = solved
+    # the duty binds at the kLa the new vessel reaches with the chosen probability
+    assert d.risk.probability == pytest.approx(process.confidence, abs=4 * d.risk.standard_error
+                                               + 2e-3)
+
+
+def test_probability_map_is_higher_where_feasible(solved):
+    _, d = solved
+    w = d.window
+    assert w.probability.shape == w.feasible.shape
+    assert np.all(w.probability[w.margins["duty"] > 0.3] > 0.5)
+
+
+def test_infeasible_design_names_the_limit():
+    process = Process(our=40 / 3600)
+    d = design(VESSEL, WATER_30C, process, MODEL, Limits(max_tip_speed=2.0), grid=(12, 12),
+               risk_draws=0, map_draws=0)
+    assert not d.feasible and d.evaluation is None
+    assert any(text.startswith("duty") or "tip speed" in text for text in d.infeasibility)
+
+
+def test_design_needs_a_duty():
+    with pytest.raises(InputError):
+        design(VESSEL, WATER_30C, Process(), MODEL)
