@@ -112,6 +112,7 @@ class WorkbenchApp(App):
         self.theme = WORKBENCH_THEME.name
         self.sub_title = Path(campaign.path).name
         self.selected_run_id: int | None = None  # the run the Curves screen opens on
+        self.runs_filter: str | None = None  # a filter another screen asks Runs to apply
 
     # ---- navigation ----------------------------------------------------------------------
     def action_go(self, mode: str) -> None:

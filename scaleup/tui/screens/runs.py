@@ -405,7 +405,12 @@ class RunsScreen(WorkScreen):
         self.reload()
 
     def on_screen_resume(self) -> None:
-        if self.query_one(RunTable).page_rows:
+        if self.app.runs_filter is not None:
+            self.where, self.app.runs_filter = self.app.runs_filter, None
+            self.query_one("#filter", Input).value = self.where
+            self.detail_run_id = None
+            self.load(0, cursor=0)
+        elif self.query_one(RunTable).page_rows:
             self.reload()
 
     def action_curve(self) -> None:
