@@ -63,6 +63,28 @@ def test_holdup_solves_calderbanks_implicit_equation():
     assert eps == pytest.approx(rhs, rel=1e-12)
 
 
+def test_calderbank_si_constants_follow_from_the_cgs_form():
+    # The cgs form as usually quoted (from memory, not a checked source): hold-up constant
+    # 0.0216, d32 = 4.15 (...) + 0.09 cm, u_t = 26.5 cm/s, with P/V in erg/(s cm3), rho in
+    # g/cm3, sigma in dyn/cm. This checks only that the SI code is that form in SI units.
+    pv, rho, sigma, us, eps = 1500.0, 1010.0, 0.070, 0.012, 0.05
+    pv_cgs = pv * 10.0  # W/m3 to erg/(s cm3)
+    rho_cgs = rho / 1000.0  # kg/m3 to g/cm3
+    sigma_cgs = sigma * 1000.0  # N/m to dyn/cm
+    us_cgs = us * 100.0  # m/s to cm/s
+    group_cgs = pv_cgs ** 0.4 * rho_cgs ** 0.2 / sigma_cgs ** 0.6  # 1/cm
+    d32_cgs = 4.15 / group_cgs * math.sqrt(eps) + 0.09  # cm
+    assert d.sauter_diameter_Calderbank(pv, eps, rho, sigma) == pytest.approx(
+        d32_cgs / 100.0, rel=1e-12)
+    a_cgs = 1.44 * group_cgs * math.sqrt(us_cgs / 26.5)  # 1/cm
+    assert d.interfacial_area_Calderbank(pv, us, rho, sigma) == pytest.approx(
+        a_cgs * 100.0, rel=1e-12)
+    h = d.gas_holdup_Calderbank(pv, us, rho, sigma)
+    rhs_cgs = (math.sqrt(h * us_cgs / 26.5)
+               + 0.0216 * group_cgs * math.sqrt(us_cgs / 26.5))
+    assert h == pytest.approx(rhs_cgs, rel=1e-9)
+
+
 def test_holdup_rises_with_gas_and_power():
     base = d.gas_holdup_Calderbank(1000.0, 0.01, 1000.0, 0.072)
     assert d.gas_holdup_Calderbank(2000.0, 0.01, 1000.0, 0.072) > base

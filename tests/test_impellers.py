@@ -32,6 +32,10 @@ def test_entries_are_physically_consistent(type_id):
     assert 0.0 <= t.gassed_floor <= 1.0
     assert t.flooding in ("valid", "conservative", "outside")
     assert t.flow_number is None or 0.2 < t.flow_number < 1.5
+    if t.np_transitional is not None:
+        re_mid, np_mid = t.np_transitional
+        assert t.re_laminar < re_mid < t.re_turbulent and np_mid > 0
+        assert "np_transitional" in t.sources
 
 
 @pytest.mark.parametrize("type_id", list(CATALOGUE))
@@ -40,8 +44,8 @@ def test_every_number_names_its_source(type_id):
     for key in ("power_number", "kp", "gassed", "re_limits"):
         assert len(sources.get(key, "")) > 10, f"{type_id}: no source for {key}"
     for key, text in sources.items():
-        # a citation has a year, or says plainly that it has none
-        assert re.search(r"\(?(19|20)\d\d\)?|no source|assumed", text), (type_id, key)
+        # a citation has a year, or says plainly that it has none or is undated
+        assert re.search(r"\(?(19|20)\d\d\)?|no source|assumed|undated", text), (type_id, key)
 
 
 def test_ids_are_generic_words():

@@ -12,16 +12,28 @@ from scaleup.hydro.impellers import CATALOGUE
 
 
 @pytest.mark.parametrize("type_id", list(CATALOGUE))
-def test_power_curve_is_continuous_and_falls_with_reynolds(type_id):
+def test_power_curve_is_continuous_and_meets_its_nodes(type_id):
     spec = CATALOGUE[type_id]
     re = np.logspace(-1, 6, 2000)
     curve = power.power_number_curve(re, spec)
-    assert np.all(np.diff(curve) <= 1e-12)
-    for edge in (spec.re_laminar, spec.re_turbulent):
+    edges = [spec.re_laminar, spec.re_turbulent]
+    if spec.np_transitional is None:
+        # without a published transitional point the curve is one falling log-log line
+        assert np.all(np.diff(curve) <= 1e-12)
+    else:
+        re_mid, np_mid = spec.np_transitional
+        assert spec.re_laminar < re_mid < spec.re_turbulent
+        assert power.power_number_curve(re_mid, spec) == pytest.approx(np_mid, rel=1e-12)
+        edges.append(re_mid)
+    for edge in edges:
         below = power.power_number_curve(edge * (1 - 1e-9), spec)
         above = power.power_number_curve(edge * (1 + 1e-9), spec)
         assert below == pytest.approx(above, rel=1e-6)
+    # the laminar branch falls; a measured plateau moves only the last segment
+    assert np.all(np.diff(curve[re <= spec.re_laminar]) < 0)
     assert curve[-1] == pytest.approx(spec.power_number)
+    assert power.power_number_curve(1e6, spec, np_turbulent=2 * spec.power_number) == \
+        pytest.approx(2 * spec.power_number)
 
 
 def test_power_curve_accepts_scalars_and_returns_floats():

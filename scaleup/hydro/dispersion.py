@@ -333,8 +333,11 @@ def gas_holdup_Calderbank(power_per_volume, superficial_velocity, rho, sigma):
 
     Notes
     -----
-    Disc turbines in pure (coalescing) liquids, gas hold-up up to about 0.25; the SI form
-    and the 0.265 m/s rise velocity are as usually quoted (from memory). Electrolytes and
+    Disc turbines in pure (coalescing) liquids, gas hold-up up to about 0.25. From memory:
+    the paper was not found in the sources searched. The SI constants (2.16e-4 here, 4.15
+    and 9e-4 m for d32, 1.44 for a, u_t = 0.265 m/s) are the cgs constants as usually quoted
+    (0.0216, 4.15, 0.09 cm, 1.44, 26.5 cm/s; also from memory) converted factor by factor;
+    open-source code seen uses the same SI numbers without citing a page. Electrolytes and
     media with surfactants give smaller bubbles and more hold-up.
 
     Examples
@@ -379,7 +382,7 @@ def sauter_diameter_Calderbank(power_per_volume, holdup, rho, sigma):
 
     Notes
     -----
-    Pure liquids; as for :func:`gas_holdup_Calderbank`.
+    Pure liquids; constants from memory, as for :func:`gas_holdup_Calderbank`.
 
     Examples
     --------
@@ -420,7 +423,7 @@ def interfacial_area_Calderbank(power_per_volume, superficial_velocity, rho, sig
     Notes
     -----
     Kept as a consistency check on a = 6 eps / d32 from the other two correlations of the
-    same set.
+    same set; constants from memory, as for :func:`gas_holdup_Calderbank`.
 
     Examples
     --------

@@ -172,8 +172,10 @@ def blend_time_Cooke(speed, diameter, tank_diameter, liquid_height, power_number
 
     Notes
     -----
-    Multiple disc turbines, H/T about 1-3, turbulent. Constants as recalled from the
-    paper (from memory); the strong H/T exponent reflects the zoning between impellers.
+    Multiple disc turbines, H/T about 1-3, turbulent. The constants 3.3 and 2.43 are from
+    memory: neither the paper nor a text quoting it was found in the sources searched
+    (handbooks, course notes, open-source code), so treat this branch as unchecked. The
+    strong H/T exponent reflects the zoning between impellers.
 
     Examples
     --------

@@ -249,7 +249,8 @@ def operating_point(vessel: Vessel, speed, gas_flow, temperature: float, rho: fl
         if np.any(re_i < spec.re_turbulent):
             zone = "laminar" if np.all(re_i <= spec.re_laminar) else "transitional"
             warnings.append(f"{imp.type}: Re = {np.min(re_i):.3g} is {zone}; power number "
-                            "from the catalogue power curve (+-30 % in the transition)")
+                            "from the catalogue power curve (uncertain in the transition: "
+                            "up to about 60 % where no published point is held)")
         if vessel.baffles == 0 and spec.flow != "close-clearance":
             warnings.append(f"unbaffled vessel: the power number of {imp.type} is for "
                             "baffled vessels; expect a vortex and lower power")

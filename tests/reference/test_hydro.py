@@ -16,40 +16,56 @@ from scaleup.hydro.impellers import impeller_type
 from scaleup.hydro.point import operating_point
 from scaleup.units import G, R
 
+# -- Harriott, Chemical Reactor Design (2003), Example 7.6 (p. 300) -----------------------------
+# The book's inputs, as transcribed in the FOSSEE Scilab textbook companion of the book
+# (FOSSEE/Scilab-TBC-Uploads, 1040/CH7/EX7.6.b): T = 4 m, liquid depth 12 m, D = 1.333 m,
+# 120 rpm, a disc turbine (Np 6) 2 m above the bottom ("10 m below the surface, about 2 atm")
+# and two pitched-blade turbines (Np 1.7); viscosity 1.5 mPa s; air at a superficial
+# velocity of 3 cm/s based on 30 degC and 1 atm. The book's results: 316 kW ungassed,
+# Fl = 0.040, Pg/P = 0.55 for the disc turbine from its Fig. 7.15.
+HARRIOTT_T, HARRIOTT_H, HARRIOTT_D, HARRIOTT_N = 4.0, 12.0, 1.333, 2.0
+HARRIOTT_TEMP, HARRIOTT_MU, HARRIOTT_RHO = 303.15, 1.5e-3, 1000.0
 
-# -- Harriott, Chemical Reactor Design (2003), Example 7.6 -------------------------------------
+
 def harriott_vessel() -> Vessel:
-    # Inputs from the issue text (Harriott 2003, Ex. 7.6): T = 4 m, H = 12 m, D = 1.333 m, a disc
-    # turbine of Np 6 at the bottom and two pitched-blade turbines of Np 1.7. The impeller
-    # heights are not given there; we place them 4 m apart (any spacing > D gives the same
-    # additive power).
-    return Vessel(4.0, 12.0, (Impeller("disc-turbine", 1.333, 1.333, power_number=6.0),
-                              Impeller("pitched-blade-6", 1.333, 5.333, power_number=1.7),
-                              Impeller("pitched-blade-6", 1.333, 9.333, power_number=1.7)))
+    # The heights of the pitched blades are not given; we place them 4 m apart (any spacing
+    # above D gives the same additive power, and only the bottom impeller sets Fl).
+    D = HARRIOTT_D
+    return Vessel(HARRIOTT_T, HARRIOTT_H,
+                  (Impeller("disc-turbine", D, 2.0, power_number=6.0),
+                   Impeller("pitched-blade-6", D, 6.0, power_number=1.7),
+                   Impeller("pitched-blade-6", D, 10.0, power_number=1.7)))
+
+
+def harriott_gas_flow() -> float:
+    # 3 cm/s over the cross-section at 30 degC and 1 atm, as a molar flow [mol/s]
+    area = math.pi * HARRIOTT_T ** 2 / 4.0
+    return 101325.0 * 0.03 * area / (R * HARRIOTT_TEMP)
 
 
 def test_harriott_example_7_6_ungassed_power():
-    # Harriott (2003), Ex. 7.6: 120 rpm in water, P about 316 kW (value as stated in the issue
-    # text; the book rounds to three figures, so 0.5 %).
-    op = operating_point(harriott_vessel(), 2.0, 0.0, 293.15, 1000.0, 1.0e-3)
+    # Harriott (2003), Ex. 7.6: P = 316 kW before the air is turned on (three figures: 0.5 %)
+    op = operating_point(harriott_vessel(), HARRIOTT_N, 0.0, HARRIOTT_TEMP, HARRIOTT_RHO,
+                         HARRIOTT_MU)
     assert op.power == pytest.approx(316e3, rel=0.005)
     assert op.power_number == pytest.approx(6.0 + 2 * 1.7, rel=1e-9)
 
 
-def test_harriott_example_7_6_flow_number_chain():
-    # Harriott (2003), Ex. 7.6 quotes Fl about 0.040 (issue text). The book's gas rate itself
-    # was not found, so this test back-calculates the molar flow that gives an actual
-    # 0.040 * N * D^3 m3/s at the bottom impeller's hydrostatic pressure and checks that the
-    # chain mol/s -> local pressure -> actual flow -> Fl returns 0.040. It checks our
-    # conversion chain, not the book's input.
-    v = harriott_vessel()
-    rho, temp = 1000.0, 303.15
-    q_target = 0.040 * 2.0 * 1.333 ** 3
-    p_imp = v.head_pressure + rho * G * (12.0 - 1.333)
-    n_dot = q_target * p_imp / (R * temp)
-    op = operating_point(v, 2.0, n_dot, temp, rho, 1.0e-3)
-    assert op.flow_number == pytest.approx(0.040, rel=1e-9)
-    assert op.impeller_pressure == pytest.approx(p_imp, rel=1e-12)
+def test_harriott_example_7_6_flow_number_from_the_books_gas_rate():
+    # Harriott (2003), Ex. 7.6: Fl = Q / (N D^3) = 0.040 at the bottom turbine, with the gas
+    # volume at "about 2 atm" there. We use the hydrostatic 1.97 atm, so within 2 %.
+    op = operating_point(harriott_vessel(), HARRIOTT_N, harriott_gas_flow(), HARRIOTT_TEMP,
+                         HARRIOTT_RHO, HARRIOTT_MU)
+    assert op.impeller_pressure / 101325.0 == pytest.approx(2.0, rel=0.02)
+    assert op.flow_number == pytest.approx(0.040, rel=0.02)
+
+
+def test_harriott_example_7_6_disc_turbine_gassed_ratio_against_cui():
+    # Harriott (2003), Ex. 7.6 reads Pg/P = 0.55 off its Fig. 7.15 at Fl = 0.040 (a chart
+    # read to two figures: +-0.03). Cui, van der Lans & Luyben (1996) at the same Fl:
+    op = operating_point(harriott_vessel(), HARRIOTT_N, harriott_gas_flow(), HARRIOTT_TEMP,
+                         HARRIOTT_RHO, HARRIOTT_MU)
+    assert power.gassed_power_ratio_Cui(op.flow_number) == pytest.approx(0.55, abs=0.03)
 
 
 # -- gassed power ---------------------------------------------------------------------------
