@@ -455,6 +455,37 @@ class Campaign:
             return self.rows(sql + " AND run_id = ? ORDER BY id", (run_id,))
         return self.rows(sql + " ORDER BY id")
 
+    def analyse_curves(self, curve_ids: list[int] | None = None, *,
+                       run_ids: list[int] | None = None, **options) -> list[dict]:
+        """Analyse stored curves (all live ones when no ids are given), keep each result with
+        its curve and set each run's kLa from its curves; one transaction. ``options``:
+        ``window``, ``tau_p_s``, ``method``, ``progress`` (see
+        :func:`scaleup.measure.stored.analyse_stored`)."""
+        from scaleup.measure.stored import analyse_stored, run_kla
+
+        sql = ("SELECT id, run_id, kind, n_samples, time_s, do_values, do_unit, probe_tau_s, "
+               "gas_on_s, window_low, window_high FROM curve WHERE deleted_at IS NULL")
+        params: list = []
+        for column, ids in (("id", curve_ids), ("run_id", run_ids)):
+            if ids is not None:
+                sql += f" AND {column} IN ({', '.join('?' for _ in ids)})"
+                params += [int(i) for i in ids]
+        stored = self.rows(sql + " ORDER BY id", params)
+        if curve_ids is not None and len(stored) < len(set(curve_ids)):
+            missing = sorted(set(map(int, curve_ids)) - {r["id"] for r in stored})
+            raise InputError(f"no live curve {', '.join(map(str, missing))}", "curve")
+        results, changes = analyse_stored(stored, **options)
+        with self.transaction():
+            for curve_id, values in changes.items():
+                records.update(self.conn, "curve", curve_id, values, actor=self.actor)
+            for run_id in sorted({r["run_id"] for r in stored}):
+                live = self.rows("SELECT kind, kla_per_s, kla_stderr_per_s FROM curve WHERE "
+                                 "run_id = ? AND deleted_at IS NULL", (run_id,))
+                values = run_kla(live)
+                if values:
+                    records.update(self.conn, "run", run_id, values, actor=self.actor)
+        return results
+
     # ---- flux measurements ---------------------------------------------------------------
     def add_flux(self, values: dict[str, Any], run_id: int | None = None) -> int:
         """Store one mass-flux measurement (solute, area, flux, concentrations, length, velocity)."""

@@ -29,6 +29,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "backup": ("scaleup.commands.store:backup_command", "Copy a campaign safely while in use."),
     "undo": ("scaleup.commands.store:undo_command", "Undo your last change."),
     "power": ("scaleup.commands.power:power_command", "Power, gassed power, regime, blend time."),
+    "kla": ("scaleup.commands.kla:kla_group", "kLa from DO curves, off-gas balance, sulfite."),
     "scale": ("scaleup.commands.scale:scale_command", "Project a pilot point to full scale by rules."),
     "design": ("scaleup.commands.scale:design_command", "Meet an O2 duty at least total power."),
     "props": ("scaleup.commands.props:props_group", "Water properties, gas solubility, diffusivity."),

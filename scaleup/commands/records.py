@@ -471,3 +471,8 @@ def run_history(ctx, run_id, as_json):
                          and k not in ("row_version", "updated_at"))
         rows.append((h["at"], h["actor"], h["action"], diff))
     print_table(rows, ["at", "by", "action", "changes"], title=f"history of run {run_id}")
+
+
+from scaleup.commands.kla import run_analyse_command  # noqa: E402  (defined with the kla commands)
+
+run_group.add_command(run_analyse_command)

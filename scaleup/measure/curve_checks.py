@@ -89,7 +89,7 @@ def detect_start(t_s: np.ndarray, c: np.ndarray) -> float:
     """
     t = np.asarray(t_s, dtype=float)
     y = np.asarray(c, dtype=float)
-    first, last, q = _levels(y)
+    first, last, _ = _levels(y)
     change = last - first
     if change < 0:
         y, first, change = -y, -first, -change
@@ -97,7 +97,7 @@ def detect_start(t_s: np.ndarray, c: np.ndarray) -> float:
     padded = np.pad(y, width // 2, mode="edge")
     smooth = np.convolve(padded, np.ones(width) / width, mode="valid")
     noise = noise_level(y) / np.sqrt(width)
-    base = float(np.median(smooth[:q]))
+    base = float(y[:width].mean())  # the level before anything happened
     above = smooth > base + max(0.1 * change, 5 * noise)
     if not above.any():
         return float(t[0])

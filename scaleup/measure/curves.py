@@ -49,6 +49,7 @@ import numpy as np
 from scaleup.errors import InputError
 from scaleup.measure import expfit
 from scaleup.measure.curve_checks import MIN_POINTS, Prepared, Rejected, detect_start, prepare
+from scaleup.measure.loglinear import goodness, log_linear_batch, t975
 
 __all__ = ["DEFAULT_WINDOW", "CURVE_METHODS", "CurveRejected", "Rejected", "CurveFit",
            "CurveAnalysis", "ProbeStep", "analyse_curve", "analyse_curves", "curve_methods",
@@ -117,6 +118,7 @@ class CurveAnalysis:
     log_linear: CurveFit | None
     lag_bias: float | None
     start_detected: bool
+    window: tuple[float, float]
     warnings: tuple[str, ...]
 
     @property
@@ -124,6 +126,28 @@ class CurveAnalysis:
         fit = self.nonlinear if self.method == "nonlinear" else self.log_linear
         assert fit is not None  # a curve whose primary method fails is rejected instead
         return fit
+
+    def summary(self) -> dict:
+        """The result as plain numbers for JSON and the store (no sample arrays).
+
+        Keys: method, kla_per_s, kla_stderr_per_s, kla_ci95_per_s, c_inf, c_inf_stderr, c0,
+        c0_stderr (unit of the data), n_points, start_s, start_detected, window (fractions),
+        window_s, tau_p_s, rmse, r_squared, durbin_watson, lag_bias, nonlinear_kla_per_s,
+        log_linear_kla_per_s, warnings.
+        """
+        p = self.primary
+        return {
+            "method": self.method, "kla_per_s": p.kla_per_s,
+            "kla_stderr_per_s": p.kla_stderr_per_s, "kla_ci95_per_s": list(p.kla_ci95_per_s),
+            "c_inf": p.c_inf, "c_inf_stderr": p.c_inf_stderr, "c0": p.c0,
+            "c0_stderr": p.c0_stderr, "n_points": p.n_points, "start_s": p.start_s,
+            "start_detected": self.start_detected, "window": list(self.window),
+            "window_s": list(p.window_s), "tau_p_s": p.tau_p_s, "rmse": p.rmse,
+            "r_squared": p.r_squared, "durbin_watson": p.durbin_watson,
+            "lag_bias": self.lag_bias,
+            "nonlinear_kla_per_s": self.nonlinear.kla_per_s if self.nonlinear else None,
+            "log_linear_kla_per_s": self.log_linear.kla_per_s if self.log_linear else None,
+            "warnings": list(self.warnings)}
 
 
 @dataclass(frozen=True)
@@ -270,16 +294,22 @@ def _per_curve(value, total: int, name: str) -> list:
 
 
 def _pad(items: list[Prepared], taus: list[float]):
+    """Pad curves into (m, n) arrays of time since start and data; each row's usable samples
+    run from ``start`` to ``length`` (the samples before the start are kept for nothing)."""
     n = max(len(p.t) for p in items)
     m = len(items)
     t = np.zeros((m, n))
     c = np.zeros((m, n))
-    usable = np.zeros((m, n), bool)
+    start = np.zeros(m, int)
+    length = np.zeros(m, int)
     for i, p in enumerate(items):
-        t[i, :len(p.t)] = p.t - p.start
-        c[i, :len(p.t)] = p.c
-        usable[i, :len(p.t)] = p.t >= p.start
-    return t, c, usable, np.array(taus)
+        size = len(p.t)
+        t[i, :size] = p.t - p.start
+        c[i, :size] = p.c
+        start[i] = int(np.searchsorted(p.t, p.start, "left"))
+        length[i] = size
+    usable = (np.arange(n) >= start[:, None]) & (np.arange(n) < length[:, None])
+    return t, c, usable, np.array(taus), start, length
 
 
 def _analyse_prepared(prepared: list[Prepared | Rejected], taus: list[float], lo: float,
@@ -289,9 +319,9 @@ def _analyse_prepared(prepared: list[Prepared | Rejected], taus: list[float], lo
     if not idx:
         return results
     items = [prepared[i] for i in idx]
-    t, c, usable, tau = _pad(items, [taus[i] for i in idx])
-    nonlinear = _nonlinear(t, c, usable, tau, lo, hi)
-    loglin = _log_linear(t, c, usable, lo, hi, [stars[i] for i in idx])
+    t, c, usable, tau, start, length = _pad(items, [taus[i] for i in idx])
+    nonlinear = _nonlinear(t, c, usable, tau, lo, hi, start, length)
+    loglin = log_linear_batch(t, c, usable, lo, hi, [stars[i] for i in idx], start, length)
     for j, i in enumerate(idx):
         p = items[j]
         nl, nl_reason = nonlinear[j]
@@ -313,7 +343,7 @@ def _analyse_prepared(prepared: list[Prepared | Rejected], taus: list[float], lo
             warnings.append(f"log-linear method not available: {ll_reason[0]}")
         results[i] = CurveAnalysis(method=method, nonlinear=fit, log_linear=llfit,
                                    lag_bias=bias, start_detected=p.start_detected,
-                                   warnings=tuple(warnings))
+                                   window=(lo, hi), warnings=tuple(warnings))
     return results
 
 
@@ -327,24 +357,44 @@ def _to_fit(d: dict, p: Prepared) -> CurveFit:
         durbin_watson=d["dw"], times_s=times, residuals=d["r"], covariance=d.get("cov"))
 
 
-def _t975(dof: np.ndarray) -> np.ndarray:
-    from scipy.stats import t as student_t
+class _Windows:
+    """Per-row sample windows [first, stop) of a padded batch, and fits on just those columns.
 
-    with np.errstate(invalid="ignore"):
-        return np.where(dof > 0, student_t.ppf(0.975, np.maximum(dof, 1)), np.nan)
+    Each row is sorted in time and its usable samples run from ``start`` to ``length``, so a
+    window of the rise is an index interval; fits crop the columns to the union of the
+    intervals, which saves the work on samples no row uses.
+    """
+
+    def __init__(self, t, c, tau, start, length):
+        self.t, self.c, self.tau, self.start, self.length = t, c, tau, start, length
+        self.first = start.copy()
+        self.stop = length.copy()
+
+    def locate(self, k: np.ndarray, lo: float, hi: float) -> tuple[np.ndarray, np.ndarray]:
+        t_lo = expfit.time_at_fraction(k, self.tau, lo)
+        t_hi = expfit.time_at_fraction(k, self.tau, hi)
+        first, stop = self.first.copy(), self.stop.copy()
+        for i in range(self.t.shape[0]):
+            row = self.t[i, self.start[i]:self.length[i]]
+            first[i] = self.start[i] + np.searchsorted(row, t_lo[i], "left")
+            stop[i] = self.start[i] + np.searchsorted(row, t_hi[i], "right")
+        return first, stop
+
+    def arrays(self, rows: np.ndarray, data: np.ndarray | None = None):
+        """(t, c, mask) of ``rows`` cropped to the columns their windows use."""
+        a, b = int(self.first[rows].min()), int(self.stop[rows].max())
+        cols = np.arange(a, b)
+        mask = (cols >= self.first[rows, None]) & (cols < self.stop[rows, None])
+        c = self.c if data is None else data
+        return self.t[rows, a:b], c[rows, a:b], mask
+
+    def fit(self, rows: np.ndarray, tau, k0=None) -> expfit.BatchFit:
+        t, c, mask = self.arrays(rows)
+        return expfit.fit_batch(t, c, mask, tau, k0)
 
 
-def _goodness(t_row, c_row, model_row) -> dict:
-    r = c_row - model_row
-    ssr = float(r @ r)
-    sst = float(((c_row - c_row.mean()) ** 2).sum())
-    dof = max(r.size - 3, 1)
-    dw = float((np.diff(r) ** 2).sum() / ssr) if ssr > 0 else float("nan")
-    return {"t": t_row, "r": r, "rmse": float(np.sqrt(ssr / dof)),
-            "r2": 1.0 - ssr / sst if sst > 0 else float("nan"), "dw": dw}
-
-
-def _nonlinear(t, c, usable, tau, lo, hi) -> list[tuple[dict | None, tuple[str, str] | None]]:
+def _nonlinear(t, c, usable, tau, lo, hi, start, length
+               ) -> list[tuple[dict | None, tuple[str, str] | None]]:
     """The nonlinear fit of a padded batch, with the window found from the fit and iterated."""
     m, n = t.shape
     # a rough fit on every few samples only has to locate the window
@@ -352,32 +402,29 @@ def _nonlinear(t, c, usable, tau, lo, hi) -> list[tuple[dict | None, tuple[str, 
     fit = expfit.fit_batch(t[:, ::every], c[:, ::every], usable[:, ::every], tau)
     alive = fit.converged.copy()
     short = np.zeros(m, bool)
-    mask = np.zeros_like(usable)
+    win = _Windows(t, c, tau, start, length)
+    fresh = np.ones(m, bool)  # rows not yet fitted on their full-resolution window
     for _ in range(6):
-        frac = 1.0 - expfit.row_response(t, fit.kla_per_s, tau)
-        new = usable & (frac >= lo) & (frac <= hi)
-        short |= alive & (new.sum(1) < MIN_POINTS)
+        first, stop = win.locate(fit.kla_per_s, lo, hi)
+        short |= alive & (stop - first < MIN_POINTS)
         alive &= ~short
-        changed = alive & (new != mask).any(1)
+        changed = alive & (fresh | (first != win.first) | (stop != win.stop))
         if not changed.any():
             break
-        mask[changed] = new[changed]
+        win.first[changed], win.stop[changed] = first[changed], stop[changed]
         rows = np.flatnonzero(changed)
-        refit = expfit.fit_batch(t[rows], c[rows], mask[rows], tau[rows],
-                                 fit.kla_per_s[rows])
+        refit = win.fit(rows, tau[rows], fit.kla_per_s[rows])
         fit = _merge(fit, refit, rows)
         alive[rows] &= refit.converged
-    else:
-        frac = 1.0 - expfit.row_response(t, fit.kla_per_s, tau)
-    model = fit.c_inf[:, None] - (fit.c_inf - fit.c0)[:, None] * (1.0 - frac)
-    bias = _lag_bias_batch(t, mask, tau, fit.kla_per_s, alive)
-    ci_half = _t975(fit.n_points - 3.0) * fit.kla_stderr_per_s
+        fresh[:] = False
+    bias = _lag_bias_batch(win, tau, fit.kla_per_s, alive)
+    ci_half = t975(fit.n_points - 3.0) * fit.kla_stderr_per_s
     out = []
     for i in range(m):
         if short[i]:
             out.append((None, (f"too few samples in the window {lo:g} to {hi:g} of the rise "
-                               f"({int(new[i].sum())}; at least {MIN_POINTS} needed): "
-                               "widen the window or record more often", "too_short")))
+                               f"({max(int(stop[i] - first[i]), 0)}; at least {MIN_POINTS} "
+                               "needed): widen the window or record more often", "too_short")))
             continue
         k = float(fit.kla_per_s[i])
         if not (alive[i] and np.isfinite(k) and k > 0 and np.isfinite(fit.ssr[i])):
@@ -385,14 +432,15 @@ def _nonlinear(t, c, usable, tau, lo, hi) -> list[tuple[dict | None, tuple[str, 
                                "first-order rise (check the start time and the window)",
                                "no_convergence")))
             continue
-        sel = mask[i]
-        d = _goodness(t[i, sel], c[i, sel], model[i, sel])
+        sel = slice(win.first[i], win.stop[i])
+        g = expfit.response(t[i, sel], k, tau[i])
+        d = goodness(t[i, sel], c[i, sel], fit.c_inf[i] - (fit.c_inf[i] - fit.c0[i]) * g)
         d.update(method="nonlinear", k=k, se=float(fit.kla_stderr_per_s[i]),
                  ci=(k - float(ci_half[i]), k + float(ci_half[i])), c_inf=float(fit.c_inf[i]),
                  c_inf_se=float(fit.c_inf_stderr[i]), c0=float(fit.c0[i]),
                  c0_se=float(fit.c0_stderr[i]), tau=float(tau[i]), cov=fit.cov[i].copy(),
                  bias=None if np.isnan(bias[i]) else float(bias[i]))
-        d["warnings"] = _fit_warnings(d, float(frac[i, sel][-1]) if sel.any() else 0.0, hi)
+        d["warnings"] = _fit_warnings(d, 1.0 - float(g[-1]), hi)
         out.append((d, None))
     return out
 
@@ -430,15 +478,16 @@ def _fit_warnings(d: dict, last_fraction: float, hi: float) -> list[str]:
     return out
 
 
-def _lag_bias_batch(t, mask, tau, kla, alive) -> np.ndarray:
+def _lag_bias_batch(win: _Windows, tau, kla, alive) -> np.ndarray:
     """Relative error of an ideal-probe fit to the noise-free lagged curve on the same samples."""
-    bias = np.full(t.shape[0], np.nan)
-    rows = np.flatnonzero((tau > 0) & alive & (mask.sum(1) >= 4))
+    bias = np.full(tau.shape[0], np.nan)
+    rows = np.flatnonzero((tau > 0) & alive & (win.stop - win.first >= 4))
     if rows.size == 0:
         return bias
     k = kla[rows]
-    clean = 1.0 - expfit.row_response(t[rows], k, tau[rows])
-    plain = expfit.fit_batch(t[rows], clean, mask[rows], 0.0, k)
+    t, _, mask = win.arrays(rows)
+    clean = 1.0 - expfit.row_response(t, k, tau[rows])
+    plain = expfit.fit_batch(t, clean, mask, 0.0, k)
     bias[rows] = np.where(plain.converged, plain.kla_per_s / k - 1.0, np.nan)
     return bias
 
@@ -475,59 +524,10 @@ def lag_bias(kla_per_s: float, tau_p_s: float, t_s: np.ndarray) -> float:
     -0.0713
     """
     t = np.asarray(t_s, dtype=float)[None, :]
-    return float(_lag_bias_batch(t, np.ones_like(t, bool), np.array([float(tau_p_s)]),
-                                 np.array([float(kla_per_s)]), np.array([True]))[0])
-
-
-def _log_linear(t, c, usable, lo, hi, stars) -> list[tuple[dict | None, tuple | None]]:
-    """The log-linear method on a padded batch (ordinary least squares on ln of the deficit)."""
-    m = t.shape[0]
-    n_use = usable.sum(1)
-    cw = np.where(usable, c, 0.0)
-    cum = np.cumsum(usable, 1)
-    q = np.maximum(5, n_use // 20)
-    tail = usable & ((n_use[:, None] - cum) < q[:, None])
-    head = usable & (cum <= q[:, None])
-    plateau = (cw * tail).sum(1) / tail.sum(1)
-    first = (cw * head).sum(1) / head.sum(1)
-    star = np.array([np.nan if s is None else float(s) for s in stars])
-    c_inf = np.where(np.isfinite(star), star, plateau)
-    rise = c_inf - first
-    with np.errstate(divide="ignore", invalid="ignore"):
-        frac = (cw - first[:, None]) / rise[:, None]
-        deficit = (c_inf[:, None] - cw) / np.sign(rise)[:, None]
-    sel = usable & (frac >= lo) & (frac <= hi) & (deficit > 0)
-    y = np.log(np.where(sel, deficit, 1.0))
-    w = sel.astype(float)
-    n = w.sum(1)
-    tw = t * w
-    st, sy, stt, sty = tw.sum(1), (y * w).sum(1), (tw * t).sum(1), (tw * y).sum(1)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        sxx = stt - st * st / n
-        slope = (sty - st * sy / n) / sxx
-        icpt = (sy - slope * st) / n
-        resid = np.where(sel, y - icpt[:, None] - slope[:, None] * t, 0.0)
-        s2 = (resid * resid).sum(1) / (n - 2)
-        se = np.sqrt(s2 / sxx)
-    half = _t975(n - 2.0) * se
-    out = []
-    for i in range(m):
-        if n[i] < 3 or not (np.isfinite(slope[i]) and slope[i] < 0):
-            why = (f"only {int(n[i])} samples lie below C_inf = {c_inf[i]:.4g} inside the window"
-                   if n[i] < 3 else "ln(C_inf - C) does not fall with time")
-            out.append((None, (why, "log_linear_failed")))
-            continue
-        k = float(-slope[i])
-        c0 = float(c_inf[i] - np.sign(rise[i]) * np.exp(icpt[i]))
-        s = sel[i]
-        model = c_inf[i] - (c_inf[i] - c0) * np.exp(-k * t[i, s])
-        d = _goodness(t[i, s], c[i, s], model)
-        d.update(method="log-linear", k=k, se=float(se[i]),
-                 ci=(k - float(half[i]), k + float(half[i])),
-                 c_inf=float(c_inf[i]), c_inf_se=float("nan"), c0=c0, c0_se=float("nan"),
-                 tau=0.0)
-        out.append((d, None))
-    return out
+    one = np.array([0]), np.array([t.shape[1]])
+    win = _Windows(t, np.zeros_like(t), np.array([float(tau_p_s)]), *one)
+    return float(_lag_bias_batch(win, win.tau, np.array([float(kla_per_s)]),
+                                 np.array([True]))[0])
 
 
 def fit_probe_step(t_s: Sequence[float] | np.ndarray, c: Sequence[float] | np.ndarray, *,

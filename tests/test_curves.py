@@ -1,0 +1,261 @@
+"""Gassing-out curves: synthetic recovery, probe lag, windows, start detection, bad curves.
+
+Synthetic curves are built here from the textbook formulas, not from the package, so a wrong
+model in the package cannot agree with itself. Checks against outside libraries (scipy,
+statsmodels) are in tests/reference/test_measure.py.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from scaleup.errors import InputError
+from scaleup.measure import expfit
+from scaleup.measure.curves import (
+    DEFAULT_WINDOW,
+    CurveRejected,
+    Rejected,
+    analyse_curve,
+    analyse_curves,
+    curve_methods,
+    detect_start,
+    fit_probe_step,
+    lag_bias,
+)
+
+
+def lagged(t, k, tau, c_inf=100.0, c0=5.0):
+    """Probe reading of a first-order rise through a first-order probe (two lags in series)."""
+    t = np.asarray(t, dtype=float)
+    if tau == 0:
+        g = np.exp(-k * t)
+    elif np.isclose(k * tau, 1.0):
+        g = (1 + t / tau) * np.exp(-t / tau)
+    else:
+        g = (np.exp(-k * t) - k * tau * np.exp(-t / tau)) / (1 - k * tau)
+    return c_inf - (c_inf - c0) * g
+
+
+T = np.arange(0.0, 600.0, 1.0)
+
+
+@pytest.mark.parametrize("k,tau", [(0.01, 0.0), (0.02, 8.0), (0.05, 3.0), (0.004, 30.0)])
+def test_noise_free_curves_are_recovered_exactly(k, tau):
+    res = analyse_curve(T, lagged(T, k, tau), tau_p_s=tau, start_s=0.0)
+    fit = res.nonlinear
+    assert fit.kla_per_s == pytest.approx(k, rel=1e-8)
+    assert fit.c_inf == pytest.approx(100.0, rel=1e-9)
+    assert fit.c0 == pytest.approx(5.0, rel=1e-7)
+    assert fit.n_points > 20 and fit.method == "nonlinear"
+
+
+@pytest.mark.parametrize("ktau", [0.97, 0.999, 1.0, 1.001, 1.03, 1.6])
+def test_lag_model_holds_through_k_tau_equal_one(ktau):
+    k = 0.02
+    t = np.arange(0.0, 1500.0, 1.0)
+    res = analyse_curve(t, lagged(t, k, ktau / k), tau_p_s=ktau / k, start_s=0.0)
+    assert res.nonlinear.kla_per_s == pytest.approx(k, rel=1e-7)
+    assert any("probe is slow" in w for w in res.warnings)
+
+
+def test_stable_and_direct_forms_agree_where_they_meet():
+    t = np.linspace(0.0, 800.0, 2001)[None, :]
+    b = np.array([[0.1]])
+    for ratio in (0.9, 0.95, 0.96, 1.04, 1.05, 1.2):
+        g1, v1 = expfit._lag_direct(t, b * ratio, b)
+        g2, v2 = expfit._lag_stable(t, b * ratio, b)
+        np.testing.assert_allclose(g1, g2, atol=1e-13)
+        np.testing.assert_allclose(v1, v2, atol=1e-10 * np.abs(v1).max())
+
+
+def test_derivative_matches_a_central_difference():
+    t = np.linspace(0.0, 300.0, 301)[None, :]
+    for k, tau in ((0.02, 0.0), (0.02, 8.0), (0.1, 10.2), (0.3, 8.0)):
+        _, v = expfit._basis(t, np.array([k]), np.array([tau]))
+        h = 1e-7 * k
+        up = expfit.response(t, k + h, tau)
+        down = expfit.response(t, k - h, tau)
+        np.testing.assert_allclose(v, (up - down) / (2 * h), atol=1e-6 * np.abs(v).max())
+
+
+def test_noisy_lagged_curve_is_recovered_within_its_interval():
+    rng = np.random.default_rng(11)
+    c = lagged(T, 0.015, 6.0) + rng.normal(0.0, 0.4, T.size)
+    fit = analyse_curve(T, c, tau_p_s=6.0, start_s=0.0).primary
+    lo, hi = fit.kla_ci95_per_s
+    assert lo < 0.015 < hi
+    assert fit.kla_stderr_per_s == pytest.approx((hi - lo) / (2 * 1.97), rel=0.01)
+    assert fit.rmse == pytest.approx(0.4, rel=0.15)
+    assert 1.5 < fit.durbin_watson < 2.5
+    assert fit.residuals.shape == fit.times_s.shape == (fit.n_points,)
+    assert fit.covariance.shape == (3, 3)
+    assert fit.covariance[2, 2] == pytest.approx(fit.kla_stderr_per_s**2)
+
+
+@pytest.mark.parametrize("tau", [0.0, 8.0])
+def test_interval_covers_the_true_kla_95_percent_of_the_time(tau):
+    """2,000 noisy curves: the coverage must be consistent with 95 %.
+
+    A nominal 95 % interval covers a fraction that scatters around 0.95 with a binomial
+    standard error of sqrt(0.95 * 0.05 / 2000) = 0.0049; three of those below is the bound.
+    """
+    rng = np.random.default_rng(2024 + int(tau))
+    t = np.arange(0.0, 300.0, 1.0)
+    k_true = 0.02
+    n = 2000
+    clean = lagged(t, k_true, tau)
+    curves = [(t, clean + rng.normal(0.0, 1.0, t.size)) for _ in range(n)]
+    results = analyse_curves(curves, tau_p_s=tau, start_s=0.0)
+    lo = np.array([r.primary.kla_ci95_per_s[0] for r in results])
+    hi = np.array([r.primary.kla_ci95_per_s[1] for r in results])
+    coverage = np.mean((lo < k_true) & (k_true < hi))
+    assert 0.95 - 3 * 0.0049 <= coverage <= 0.95 + 3 * 0.0049
+
+
+def test_uncorrected_fit_bias_matches_the_expected_bias():
+    """Ideal-probe fits to noisy lagged curves read low by what the noise-free curve predicts."""
+    rng = np.random.default_rng(7)
+    k, tau = 0.02, 8.0
+    t = np.arange(0.0, 400.0, 0.5)
+    expected = lag_bias(k, tau, t)
+    assert expected < -0.05  # the design must show a real bias for the test to mean something
+    m = 400
+    c = lagged(t, k, tau)[None, :] + rng.normal(0.0, 0.5, (m, t.size))
+    fit = expfit.fit_batch(np.tile(t, (m, 1)), c, np.ones(c.shape, bool), 0.0)
+    observed = fit.kla_per_s / k - 1.0
+    standard_error = observed.std(ddof=1) / np.sqrt(m)
+    assert observed.mean() == pytest.approx(expected, abs=4 * standard_error + 1e-4)
+
+
+def test_analysis_reports_the_lag_bias_of_its_own_samples_and_warns():
+    res = analyse_curve(T, lagged(T, 0.03, 10.0), tau_p_s=10.0, start_s=0.0,
+                        window=(0.0, 0.98))
+    fit = res.nonlinear
+    assert res.lag_bias == pytest.approx(lag_bias(0.03, 10.0, fit.times_s - fit.start_s),
+                                         rel=1e-6)
+    assert any("probe lag" in w and "low" in w for w in res.warnings)
+
+
+def test_log_linear_is_reported_beside_and_can_be_primary():
+    rng = np.random.default_rng(3)
+    c = lagged(T, 0.01, 0.0) + rng.normal(0.0, 0.3, T.size)
+    both = analyse_curve(T, c, start_s=0.0, c_star=100.0)
+    assert both.method == "nonlinear" and both.log_linear is not None
+    assert both.log_linear.kla_per_s == pytest.approx(0.01, rel=0.03)
+    ll = analyse_curve(T, c, start_s=0.0, c_star=100.0, method="log-linear")
+    assert ll.primary.method == "log-linear"
+    assert ll.primary.kla_per_s == pytest.approx(both.log_linear.kla_per_s)
+    assert ll.summary()["nonlinear_kla_per_s"] == pytest.approx(both.nonlinear.kla_per_s)
+    assert curve_methods() == ["nonlinear", "log-linear"]
+
+
+def test_units_do_not_change_kla_and_nan_gaps_are_skipped():
+    rng = np.random.default_rng(5)
+    pct = lagged(T, 0.012, 0.0) + rng.normal(0.0, 0.3, T.size)
+    mg_l = pct * 7.9 / 100.0
+    a = analyse_curve(T, pct, start_s=0.0).primary
+    b = analyse_curve(T, mg_l, start_s=0.0).primary
+    assert b.kla_per_s == pytest.approx(a.kla_per_s, rel=1e-9)
+    assert b.c_inf == pytest.approx(a.c_inf * 0.079, rel=1e-9)
+    gappy = pct.copy()
+    gappy[100:140] = np.nan
+    res = analyse_curve(T, gappy, start_s=0.0)
+    assert res.primary.kla_per_s == pytest.approx(0.012, rel=0.03)
+    assert any("40 samples" in w for w in res.warnings)
+
+
+def test_falling_curve_desorption_is_fitted_too():
+    res = analyse_curve(T, lagged(T, 0.01, 0.0, c_inf=10.0, c0=95.0), start_s=0.0)
+    assert res.primary.kla_per_s == pytest.approx(0.01, rel=1e-8)
+    assert res.primary.c0 == pytest.approx(95.0, rel=1e-8)
+
+
+def test_start_is_detected_after_a_flat_prefix():
+    rng = np.random.default_rng(8)
+    t = np.arange(0.0, 700.0, 1.0)
+    c = np.where(t < 60, 3.0, lagged(t - 60, 0.015, 0.0, c0=3.0)) + rng.normal(0, 0.3, t.size)
+    start = detect_start(t, c)
+    assert 55.0 <= start <= 64.0
+    res = analyse_curve(t, c)
+    assert res.start_detected and res.primary.start_s == start
+    assert res.primary.kla_per_s == pytest.approx(0.015, rel=0.03)
+
+
+def test_data_starting_on_the_rise_start_at_the_first_sample():
+    assert detect_start(T, lagged(T, 0.02, 0.0)) == 0.0
+
+
+def test_window_is_the_stated_fraction_of_the_fitted_rise():
+    assert DEFAULT_WINDOW == (0.2, 0.98)
+    k = 0.01
+    fit = analyse_curve(T, lagged(T, k, 0.0, c0=0.0), start_s=0.0).primary
+    # the ideal rise reaches 20 % at -ln(0.8)/k and 98 % at -ln(0.02)/k
+    assert fit.window_s[0] == pytest.approx(np.ceil(-np.log(0.8) / k), abs=1.0)
+    assert fit.window_s[1] == pytest.approx(np.floor(-np.log(0.02) / k), abs=1.0)
+    narrow = analyse_curve(T, lagged(T, k, 0.0), start_s=0.0, window=(0.5, 0.9)).primary
+    assert narrow.n_points < fit.n_points
+
+
+def test_a_curve_that_stops_early_warns_about_extrapolating_c_inf():
+    t = np.arange(0.0, 80.0, 0.5)
+    res = analyse_curve(t, lagged(t, 0.01, 0.0), start_s=0.0)
+    assert any("C_inf is extrapolated" in w for w in res.warnings)
+
+
+@pytest.mark.parametrize("t,c,code,words", [
+    (T, np.full(T.size, 42.0), "flat", "flat"),
+    (T[:3], np.array([1.0, 5.0, 9.0]), "too_short", "at least 5"),
+    (T, np.full(T.size, np.nan), "all_nan", "missing"),
+    (np.array([0.0, 1.0, 2.0, 1.5, 4.0, 5.0]), np.arange(6.0), "time_not_increasing",
+     "does not increase"),
+])
+def test_bad_curves_get_their_own_reason(t, c, code, words):
+    with pytest.raises(CurveRejected) as info:
+        analyse_curve(t, c)
+    assert info.value.code == code
+    assert words in str(info.value)
+    assert isinstance(info.value, InputError)
+
+
+def test_saturated_curve_is_told_apart_from_a_flat_one():
+    rng = np.random.default_rng(1)
+    with pytest.raises(CurveRejected, match="saturated from the start") as info:
+        analyse_curve(T, 99.5 + rng.normal(0, 0.2, T.size), c_star=100.0)
+    assert info.value.code == "saturated"
+
+
+def test_batch_keeps_order_and_gives_rejected_slots_and_progress():
+    calls = []
+    noise = np.random.default_rng(9).normal(0.0, 0.3, T.size)
+    curves = [(T, lagged(T, 0.01, 0.0)), (T, np.full(T.size, 5.0)),
+              (T[:400], lagged(T[:400], 0.03, 4.0) + noise[:400])]
+    out = analyse_curves(curves, tau_p_s=[0.0, 0.0, 4.0], start_s=0.0,
+                         progress=lambda d, n: calls.append((d, n)))
+    assert isinstance(out[1], Rejected) and out[1].code == "flat"
+    assert out[0].primary.kla_per_s == pytest.approx(0.01, rel=1e-8)
+    assert out[2].primary.kla_per_s == pytest.approx(0.03, rel=0.02)
+    assert calls[-1] == (3, 3)
+    single = analyse_curve(*curves[2], tau_p_s=4.0, start_s=0.0).summary()
+    for key, value in out[2].summary().items():
+        if isinstance(value, float):
+            assert value == pytest.approx(single[key], rel=1e-7), key
+
+
+@pytest.mark.parametrize("kwargs,field", [
+    ({"window": (0.9, 0.2)}, "window"), ({"method": "spline"}, "method"),
+    ({"tau_p_s": -1.0}, "tau_p_s"), ({"start_s": 5000.0}, "start_s"),
+])
+def test_bad_settings_are_refused_by_name(kwargs, field):
+    with pytest.raises(InputError) as info:
+        analyse_curve(T, lagged(T, 0.01, 0.0), **kwargs)
+    assert info.value.field == field
+
+
+def test_probe_step_gives_the_time_constant():
+    rng = np.random.default_rng(4)
+    t = np.arange(0.0, 60.0, 0.1)
+    c = 100 * (1 - np.exp(-t / 7.5)) + rng.normal(0, 0.3, t.size)
+    step = fit_probe_step(t, c, start_s=0.0)
+    assert step.tau_p_s == pytest.approx(7.5, abs=4 * step.tau_p_stderr_s)
+    assert step.tau_p_stderr_s < 0.1
