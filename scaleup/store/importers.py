@@ -1,233 +1,359 @@
-"""Read spreadsheets of runs into a campaign: validated whole, written all or nothing.
+"""Read spreadsheets of runs, vessels and flux tests into a campaign: checked whole, written
+all or nothing.
 
 Header cells read ``name [unit]`` (``speed [rpm]``, ``gas flow [NL/min]``); any unit of the
 right kind is accepted. Column names match the field labels of :mod:`scaleup.fields`, case-
 and space-insensitively (``Gas_Flow`` = ``gas flow``). Every row is checked before anything
-is written; one bad row rejects the file, and the report lists every bad row.
+is kept; one bad row rejects the file, and the report lists every bad row with its column,
+value and reason. A workbook may hold a ``vessels`` sheet beside its ``runs`` sheet: the
+vessels go in first, in the same transaction, so the runs may refer to them.
+
+DO logger files (curves) are read by :mod:`scaleup.store.curve_import`.
 """
 
 from __future__ import annotations
 
-import csv
-import io
 import re
-from dataclasses import dataclass
+from collections.abc import Callable, Iterable
 from pathlib import Path
 
 from scaleup import fields as F
-from scaleup.errors import ImportRejected, InputError
+from scaleup.errors import ImportRejected, InputError, MediumNotFound, NotFound, VesselNotFound
+from scaleup.store import records
+from scaleup.store.tables import (
+    Table,
+    cell_text,
+    match_columns,
+    normalise,
+    problem,
+    read_table,
+    sheet_names,
+)
 
-_HEADER = re.compile(r"^\s*(?P<name>[^\[\]]+?)\s*(?:\[(?P<unit>[^\[\]]*)\])?\s*$")
-MAX_BYTES = 200 * 1024 * 1024
-
-
-@dataclass(frozen=True)
-class Table:
-    """A sheet as read: header names and units, and rows of text cells (row 2 is the first)."""
-
-    names: list[str]
-    units: list[str]
-    rows: list[list[str]]
-    source: str
-
-
-def normalise(name: str) -> str:
-    return re.sub(r"[\s_\-]+", " ", name.strip().lower())
-
-
-def read_table(path: str | Path, sheet: str | None = None) -> Table:
-    """Read a CSV (UTF-8, comma, semicolon or tab separated) or the sheet of an XLSX file."""
-    path = Path(path)
-    if not path.exists():
-        raise InputError(f"{path} does not exist", "file", str(path))
-    if path.stat().st_size == 0:
-        raise ImportRejected([{"row": None, "column": None, "value": None,
-                               "reason": "the file is empty"}], str(path))
-    if path.stat().st_size > MAX_BYTES:
-        raise InputError(f"{path} is larger than {MAX_BYTES // 2**20} MB", "file", str(path))
-    if path.suffix.lower() in (".xlsx", ".xlsm"):
-        return _read_xlsx(path, sheet)
-    raw = path.read_bytes()
-    if b"\x00" in raw[:4096]:
-        raise ImportRejected([{"row": None, "column": None, "value": None,
-                               "reason": "this is not a text (CSV) file: it holds binary data"}],
-                             str(path))
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        raise ImportRejected([{"row": None, "column": None, "value": None,
-                               "reason": f"not UTF-8 text (byte {exc.start}); save the file as "
-                                         "UTF-8 CSV"}], str(path)) from None
-    sample = text[:4096]
-    delimiter = max([",", ";", "\t"], key=sample.split("\n", 1)[0].count)
-    reader = csv.reader(io.StringIO(text), delimiter=delimiter)
-    all_rows = [r for r in reader]
-    return _table(all_rows, str(path))
-
-
-def _read_xlsx(path: Path, sheet: str | None) -> Table:
-    import openpyxl
-
-    try:
-        book = openpyxl.load_workbook(path, read_only=True, data_only=True)
-    except Exception as exc:
-        raise ImportRejected([{"row": None, "column": None, "value": None,
-                               "reason": f"cannot read as an XLSX workbook: {exc}"}],
-                             str(path)) from None
-    if sheet is not None and sheet not in book.sheetnames:
-        raise InputError(f'no sheet "{sheet}"; sheets: {", ".join(book.sheetnames)}', "sheet")
-    ws = book[sheet] if sheet else book.worksheets[0]
-    all_rows = [["" if v is None else (repr(v) if isinstance(v, float) else str(v))
-                 for v in row] for row in ws.iter_rows(values_only=True)]
-    book.close()
-    return _table(all_rows, f"{path}:{ws.title}")
-
-
-def _table(all_rows: list[list[str]], source: str) -> Table:
-    all_rows = [r for r in all_rows if any(c.strip() for c in r)]
-    if not all_rows:
-        raise ImportRejected([{"row": None, "column": None, "value": None,
-                               "reason": "the file has no header row"}], source)
-    names, units_ = [], []
-    for cell in all_rows[0]:
-        m = _HEADER.match(cell or "")
-        if not m:
-            raise ImportRejected([{"row": 1, "column": cell, "value": None,
-                                   "reason": 'a header reads "name [unit]"'}], source)
-        names.append(m.group("name"))
-        units_.append((m.group("unit") or "").strip())
-    width = len(names)
-    rows = [(r + [""] * width)[:width] for r in all_rows[1:]]
-    return Table(names, units_, rows, source)
-
-
-def match_columns(table: Table, specs: tuple[F.Field, ...],
-                  extra: tuple[str, ...] = ()) -> dict[int, F.Field | str]:
-    """Map column index -> field (or an extra column name); refuse unknown and missing ones."""
-    by_name = {}
-    for s in specs:
-        by_name[normalise(s.label)] = s
-        by_name[normalise(s.column)] = s
-    for e in extra:
-        by_name[normalise(e)] = e
-    mapping, problems = {}, []
-    for i, name in enumerate(table.names):
-        key = normalise(name)
-        if key not in by_name:
-            problems.append({"row": 1, "column": name, "value": None,
-                             "reason": "unknown column; expected columns: "
-                                       + ", ".join(s.label for s in specs)})
-            continue
-        mapping[i] = by_name[key]
-    present = {m.column for m in mapping.values() if isinstance(m, F.Field)}
-    for s in specs:
-        if s.required and s.column not in present:
-            problems.append({"row": 1, "column": s.label, "value": None,
-                             "reason": "required column is missing; expected columns: "
-                                       + ", ".join(s.label for s in specs)})
-    if problems:
-        raise ImportRejected(problems, table.source)
-    return mapping
-
-
-def cell_text(value: str, unit: str) -> str:
-    """The text of one cell with its column's unit, ready for :func:`scaleup.fields.read`."""
-    value = value.strip()
-    if not value:
-        return ""
-    if re.fullmatch(r"[-+]?\d{1,3}(,\d{3})+(\.\d+)?", value):
-        raise InputError(f'"{value}" has thousands separators; write the plain number '
-                         f'"{value.replace(",", "")}"')
-    if re.fullmatch(r"[-+]?\d+,\d+", value):
-        raise InputError(f'"{value}" uses a decimal comma; write "{value.replace(",", ".")}"')
-    return f"{value} {unit}" if unit else value
-
-
-def import_runs(campaign, path: str | Path, *, sheet: str | None = None, dry_run: bool = False,
-                on_duplicate: str = "refuse") -> dict:
-    """Validate every row of a runs file, then write them in one transaction.
-
-    Returns ``{"added": n, "skipped": n, "replaced": n, "rows": [...], "dry_run": bool}``.
-    Raises :class:`ImportRejected` listing every bad row; nothing is written then.
-    """
-    from scaleup.store import records
-
-    if on_duplicate not in ("refuse", "skip", "replace"):
-        raise InputError(f'"{on_duplicate}" is not one of refuse, skip, replace', "on-duplicate")
-    table = read_table(path, sheet)
-    mapping = match_columns(table, F.RUN)
-    problems, clean_rows = [], []
-    for row_number, cells in enumerate(table.rows, start=2):
-        values = {}
-        row_bad = False
-        for i, spec in mapping.items():
-            try:
-                text = cell_text(cells[i], table.units[i])
-            except InputError as exc:
-                problems.append({"row": row_number, "column": table.names[i],
-                                 "value": cells[i], "reason": str(exc)})
-                row_bad = True
-                continue
-            if text:
-                values[spec.label] = text
-        if row_bad:
-            continue
-        try:
-            clean_rows.append((row_number, campaign._clean_run(values)))
-        except InputError as exc:
-            for part in str(exc).split("; "):
-                column = part.split(":", 1)[0] if ":" in part else None
-                problems.append({"row": row_number, "column": column,
-                                 "value": values.get(column), "reason": part})
-    seen = {}
-    added = skipped = replaced = 0
-    plan = []
-    for row_number, clean in clean_rows:
-        key = (clean["vessel_id"], clean["medium_id"], round(clean["speed_rps"], 9),
-               round(clean["gas_flow_mol_s"], 12), clean["run_at"])
-        if key in seen:
-            problems.append({"row": row_number, "column": None, "value": None,
-                             "reason": f"duplicate of row {seen[key]} (same vessel, medium, "
-                                       "speed, gas flow, date and time)"})
-            continue
-        seen[key] = row_number
-        existing = campaign.rows(
-            "SELECT id FROM run WHERE deleted_at IS NULL AND vessel_id = ? AND medium_id = ? AND "
-            "abs(speed_rps - ?) < 1e-9 AND abs(gas_flow_mol_s - ?) < 1e-12 AND run_at = ?", key)
-        if existing and on_duplicate == "refuse":
-            problems.append({"row": row_number, "column": None, "value": None,
-                             "reason": f"duplicate of stored run {existing[0]['id']}; use "
-                                       "--on-duplicate skip or replace"})
-            continue
-        plan.append((row_number, clean, existing[0]["id"] if existing else None))
-    if problems:
-        raise ImportRejected(sorted(problems, key=lambda p: (p["row"] or 0)), table.source)
-    summary_rows = []
-    try:
-        with campaign.transaction():
-            for row_number, clean, existing_id in plan:
-                if existing_id is not None and on_duplicate == "skip":
-                    skipped += 1
-                    summary_rows.append({"row": row_number, "action": "skip",
-                                         "run_id": existing_id})
-                elif existing_id is not None:
-                    records.update(campaign.conn, "run", existing_id, clean,
-                                   actor=campaign.actor)
-                    replaced += 1
-                    summary_rows.append({"row": row_number, "action": "replace",
-                                         "run_id": existing_id})
-                else:
-                    run_id = records.insert(campaign.conn, "run", clean, actor=campaign.actor,
-                                            action="import")
-                    added += 1
-                    summary_rows.append({"row": row_number, "action": "add", "run_id": run_id})
-            if dry_run:
-                raise _RollBack
-    except _RollBack:
-        pass
-    return {"added": added, "skipped": skipped, "replaced": replaced, "rows": summary_rows,
-            "dry_run": dry_run, "source": table.source}
+DUPLICATE_CHOICES = ("refuse", "skip", "replace")
+ENTITIES = {"runs": "scaleup.store.importers:import_runs",
+            "vessels": "scaleup.store.vessel_import:import_vessels",
+            "fluxes": "scaleup.store.importers:import_fluxes",
+            "curves": "scaleup.store.curve_import:import_curves"}
+RUN_COLUMN = {"run": ("run", "run ref", "ref", "run id")}
+# progress(stage, done, total): the command line draws a bar from it; the store stays quiet
+Progress = Callable[[str, int, int], None]
+_RUN_KEY_TEXT = "same vessel, medium, speed, gas flow, date and time"
 
 
 class _RollBack(Exception):
     """Raised inside the transaction of a dry run so that nothing is kept."""
+
+
+def check_on_duplicate(value: str) -> str:
+    if value not in DUPLICATE_CHOICES:
+        raise InputError(f'"{value}" is not one of {", ".join(DUPLICATE_CHOICES)}',
+                         "on-duplicate", value)
+    return value
+
+
+def import_file(campaign, entity: str, path: str | Path, **options) -> dict:
+    """Import a file of ``entity`` (runs, vessels, fluxes, curves); see each importer."""
+    import importlib
+
+    if entity not in ENTITIES:
+        raise InputError(f'cannot import "{entity}"; choose one of {", ".join(ENTITIES)}',
+                         "entity", entity)
+    module, name = ENTITIES[entity].split(":")
+    return getattr(importlib.import_module(module), name)(campaign, path, **options)
+
+
+def _quiet(stage: str, done: int, total: int) -> None:
+    """No progress display."""
+
+
+def kept_unless_dry(campaign, work: Callable[[], dict], dry_run: bool) -> dict:
+    """Run ``work`` in one transaction; a dry run (or any error, or Ctrl-C) keeps nothing."""
+    outcome: dict = {}
+    try:
+        with campaign.transaction():
+            outcome = work()
+            if dry_run:
+                raise _RollBack
+    except _RollBack:
+        pass
+    outcome["dry_run"] = dry_run
+    return outcome
+
+
+def split_message(message: str, labels: Iterable[str]) -> list[tuple[str | None, str]]:
+    """Split a validation message ``"speed: ...; temperature: ..."`` into (column, reason).
+
+    Reasons may contain "; " themselves, so the split happens only before a known label.
+    """
+    names = sorted(set(labels), key=len, reverse=True)
+    pattern = "|".join(re.escape(n) for n in names)
+    parts = re.split(rf"; (?=(?:{pattern}): )", message)
+    out = []
+    for part in parts:
+        m = re.match(rf"^({pattern}): (.*)$", part, re.S)
+        out.append((m.group(1), m.group(2)) if m else (None, part))
+    return out
+
+
+def row_values(table: Table, mapping: dict, number: int, cells: list[str],
+               problems: list[dict], decimal_comma: bool = False) -> tuple[dict, dict, set]:
+    """Cells of one row as ``{label: "value unit"}`` and ``{extra key: text}``.
+
+    Cells that cannot be read (decimal comma, text in a number column) go to ``problems``;
+    their labels are returned so that the "is required" echo of them is not reported twice.
+    """
+    values, extra, bad = {}, {}, set()
+    for i, target in mapping.items():
+        raw = cells[i]
+        if isinstance(target, str):
+            if raw.strip():
+                extra[target] = raw.strip()
+            continue
+        unit = table.units[i] if target.kind not in ("text", "choice", "date") else ""
+        try:
+            text = cell_text(raw, unit, decimal_comma=decimal_comma) if target.kind not in (
+                "text", "choice", "date") else raw.strip()
+        except InputError as exc:
+            problems.append(problem(number, table.names[i], raw, str(exc)))
+            bad.add(target.label)
+            continue
+        if text:
+            values[target.label] = text
+    return values, extra, bad
+
+
+def report_error(problems: list[dict], number: int, exc: InputError, labels: Iterable[str],
+                 values: dict, bad: set = frozenset()) -> None:
+    """Add the parts of a validation error to ``problems``, each under its column."""
+    if isinstance(exc, NotFound):
+        column = "vessel" if isinstance(exc, VesselNotFound) else \
+            "medium" if isinstance(exc, MediumNotFound) else exc.field
+        problems.append(problem(number, column, values.get(column), str(exc)))
+        return
+    for column, reason in split_message(str(exc), labels):
+        if column in bad and reason == "is required":
+            continue
+        problems.append(problem(number, column, values.get(column), reason))
+
+
+def rejected_if(problems: list[dict], source: str) -> None:
+    if problems:
+        raise ImportRejected(sorted(problems, key=lambda p: (p["row"] or 0)), source)
+
+
+def run_by_reference(campaign, text: str) -> int:
+    """A run by its ``ref``, or by its id written as a plain whole number."""
+    found = campaign.rows("SELECT id, deleted_at FROM run WHERE ref = ?", (text,))
+    if not found and re.fullmatch(r"#?\d+", text):
+        found = campaign.rows("SELECT id, deleted_at FROM run WHERE id = ?",
+                              (int(text.lstrip("#")),))
+    if not found:
+        raise NotFound(f'no run with ref or id "{text}"', "run", text)
+    if found[0]["deleted_at"]:
+        raise NotFound(f'run "{text}" is deleted; restore it first', "run", text)
+    return found[0]["id"]
+
+
+# ------------------------------------------------------------------------------------ runs
+def import_runs(campaign, path: str | Path, *, sheet: str | None = None, dry_run: bool = False,
+                on_duplicate: str = "refuse", decimal_comma: bool = False,
+                progress: Progress | None = None) -> dict:
+    """Check every row of a runs file, then write them in one transaction.
+
+    Returns ``{"entity": "runs", "added", "skipped", "replaced", "rows": [...],
+    "dry_run", "source"}`` (and ``"vessels"``, the summary of a vessels sheet of the same
+    workbook). Raises :class:`ImportRejected` listing every bad row; nothing is written then.
+    """
+    check_on_duplicate(on_duplicate)
+    progress = progress or _quiet
+    table = read_table(path, sheet, entity="runs")
+    vessel_sheet = next((s for s in sheet_names(path) if normalise(s) == "vessels"), None)
+    if vessel_sheet is not None and not table.source.endswith(f":{vessel_sheet}"):
+        from scaleup.store.vessel_import import apply_vessels
+
+        vessels = read_table(path, vessel_sheet, allow_empty=True)
+
+        def work() -> dict:
+            vessel_summary = apply_vessels(campaign, vessels, on_duplicate, decimal_comma,
+                                           progress)
+            plan = plan_runs(campaign, table, on_duplicate, decimal_comma, progress)
+            return {**write_runs(campaign, plan, progress, table.source),
+                    "vessels": vessel_summary}
+        return kept_unless_dry(campaign, work, dry_run)
+    plan = plan_runs(campaign, table, on_duplicate, decimal_comma, progress)
+    return kept_unless_dry(campaign, lambda: write_runs(campaign, plan, progress, table.source),
+                           dry_run)
+
+
+def _close(a: float, b: float) -> bool:
+    return abs(a - b) <= 1e-9 * max(abs(a), abs(b)) + 1e-15
+
+
+def _stored_runs(campaign) -> tuple[dict, dict]:
+    keys: dict[tuple, list] = {}
+    for r in campaign.rows("SELECT id, vessel_id, medium_id, run_at, speed_rps, gas_flow_mol_s "
+                           "FROM run WHERE deleted_at IS NULL"):
+        keys.setdefault((r["vessel_id"], r["medium_id"], r["run_at"]), []).append(
+            (r["id"], r["speed_rps"], r["gas_flow_mol_s"]))
+    refs = {r["ref"]: (r["id"], r["deleted_at"]) for r in campaign.rows(
+        "SELECT id, ref, deleted_at FROM run WHERE ref IS NOT NULL")}
+    return keys, refs
+
+
+def _match(candidates: dict, clean: dict):
+    key = (clean["vessel_id"], clean["medium_id"], clean["run_at"])
+    for ident, speed, gas in candidates.get(key, ()):
+        if _close(speed, clean["speed_rps"]) and _close(gas, clean["gas_flow_mol_s"]):
+            return ident
+    return None
+
+
+def plan_runs(campaign, table: Table, on_duplicate: str, decimal_comma: bool,
+              progress: Progress) -> list[tuple[int, dict, int | None, str]]:
+    """Every row checked: (row, clean record, stored duplicate's id, add|skip|replace)."""
+    mapping = match_columns(table, F.RUN)
+    labels = [s.label for s in F.RUN]
+    problems = list(table.problems)
+    stored, stored_refs = _stored_runs(campaign)
+    in_file: dict[tuple, list] = {}
+    file_refs: dict[str, int] = {}
+    plan = []
+    total = len(table.rows)
+    for done, (number, cells) in enumerate(table.numbered(), start=1):
+        if done % 200 == 0 or done == total:
+            progress("checking runs", done, total)
+        values, _, bad = row_values(table, mapping, number, cells, problems, decimal_comma)
+        try:
+            clean = campaign._clean_run(values)
+        except InputError as exc:
+            report_error(problems, number, exc, labels, values, bad)
+            continue
+        if bad:
+            continue
+        twin = _match(in_file, clean)
+        if twin is not None:
+            problems.append(problem(number, None, None,
+                                    f"duplicate of row {twin} ({_RUN_KEY_TEXT})"))
+            continue
+        key = (clean["vessel_id"], clean["medium_id"], clean["run_at"])
+        in_file.setdefault(key, []).append((number, clean["speed_rps"], clean["gas_flow_mol_s"]))
+        existing = _match(stored, clean)
+        if existing is not None and on_duplicate == "refuse":
+            problems.append(problem(number, None, None,
+                                    f"duplicate of stored run {existing} ({_RUN_KEY_TEXT}); "
+                                    "use --on-duplicate skip or replace"))
+            continue
+        ref = clean.get("ref")
+        if ref is not None and not (existing is not None and on_duplicate == "skip"):
+            if ref in file_refs:
+                problems.append(problem(number, "ref", ref, f"also used on row {file_refs[ref]};"
+                                        " a ref is unique in the campaign"))
+                continue
+            file_refs[ref] = number
+            owner = stored_refs.get(ref)
+            if owner is not None and owner[0] != existing:
+                reason = (f"belongs to deleted run {owner[0]}; restore it or choose another ref"
+                          if owner[1] else f"is already used by stored run {owner[0]}, a "
+                          "different run; a ref is unique in the campaign")
+                problems.append(problem(number, "ref", ref, reason))
+                continue
+        action = "add" if existing is None else on_duplicate
+        plan.append((number, clean, existing, action))
+    rejected_if(problems, table.source)
+    return plan
+
+
+def write_plan(campaign, entity: str, plan: list, add: Callable[[dict], int],
+               progress: Progress, source: str) -> dict:
+    """Carry out a checked plan of (row, clean record, stored duplicate, action) in the
+    caller's transaction; ``add(clean)`` stores a new record and returns its id."""
+    table = {"runs": "run", "fluxes": "flux"}[entity]
+    counts = {"add": 0, "skip": 0, "replace": 0}
+    rows = []
+    for done, (number, clean, existing, action) in enumerate(plan, start=1):
+        ident = add(clean) if action == "add" else existing
+        if action == "replace":
+            records.update(campaign.conn, table, existing, clean, actor=campaign.actor)
+        counts[action] += 1
+        rows.append({"row": number, "action": action, f"{table}_id": ident, "record": clean})
+        if done % 200 == 0 or done == len(plan):
+            progress(f"writing {entity}", done, len(plan))
+    return {"entity": entity, "added": counts["add"], "skipped": counts["skip"],
+            "replaced": counts["replace"], "rows": rows, "source": source}
+
+
+def write_runs(campaign, plan: list, progress: Progress, source: str) -> dict:
+    return write_plan(campaign, "runs", plan, lambda clean: records.insert(
+        campaign.conn, "run", clean, actor=campaign.actor, action="import"), progress, source)
+
+
+# ---------------------------------------------------------------------------------- fluxes
+_FLUX_KEY = ("solute", "interfacial_area_m2", "c_interface_mol_m3", "c_bulk_mol_m3",
+             "characteristic_length_m", "velocity_m_s", "temperature_k")
+
+
+def import_fluxes(campaign, path: str | Path, *, sheet: str | None = None,
+                  dry_run: bool = False, on_duplicate: str = "refuse",
+                  decimal_comma: bool = False, progress: Progress | None = None) -> dict:
+    """Import flux measurements; an optional ``run`` column names the run (ref or id).
+
+    A duplicate is a test with the same run, solute, area, concentrations, length, velocity
+    and temperature; ``replace`` overwrites its flux and the other fields.
+    """
+    from scaleup.campaign import validate
+
+    check_on_duplicate(on_duplicate)
+    progress = progress or _quiet
+    table = read_table(path, sheet, entity="fluxes")
+    mapping = match_columns(table, F.FLUX, RUN_COLUMN)
+    labels = [s.label for s in F.FLUX]
+    problems = list(table.problems)
+    stored = campaign.fluxes()
+    plan, seen = [], []
+    for number, cells in table.numbered():
+        values, extra, bad = row_values(table, mapping, number, cells, problems, decimal_comma)
+        run_id = None
+        if "run" in extra:
+            try:
+                run_id = run_by_reference(campaign, extra["run"])
+            except NotFound as exc:
+                problems.append(problem(number, "run", extra["run"], str(exc).split(": ", 1)[-1]))
+        try:
+            clean = validate(F.FLUX, values)
+        except InputError as exc:
+            report_error(problems, number, exc, labels, values, bad)
+            continue
+        if bad:
+            continue
+        if clean["c_interface_mol_m3"] == clean["c_bulk_mol_m3"]:
+            problems.append(problem(number, "bulk concentration", values.get(
+                "bulk concentration"), "equals the interface concentration: no driving force"))
+            continue
+        twin = next((row for row, other, rid in seen if rid == run_id and _same_flux(other, clean)),
+                    None)
+        if twin is not None:
+            problems.append(problem(number, None, None, f"duplicate of row {twin} (same run, "
+                                    "solute, area, concentrations, length, velocity and "
+                                    "temperature)"))
+            continue
+        seen.append((number, clean, run_id))
+        existing = next((f["id"] for f in stored if f["run_id"] == run_id
+                         and _same_flux(f, clean)), None)
+        if existing is not None and on_duplicate == "refuse":
+            problems.append(problem(number, None, None, f"duplicate of stored flux test "
+                                    f"{existing}; use --on-duplicate skip or replace"))
+            continue
+        plan.append((number, {**clean, "run_id": run_id}, existing,
+                     "add" if existing is None else on_duplicate))
+    rejected_if(problems, table.source)
+
+    def add(clean: dict) -> int:
+        return campaign.add_flux({k: v for k, v in clean.items() if k != "run_id"},
+                                 clean["run_id"])
+    return kept_unless_dry(campaign, lambda: write_plan(campaign, "fluxes", plan, add, progress,
+                                                        table.source), dry_run)
+
+
+def _same_flux(a: dict, b: dict) -> bool:
+    return all(a[k] == b[k] if isinstance(a[k], str) else _close(a[k], b[k]) for k in _FLUX_KEY)
