@@ -39,8 +39,9 @@ HANDBOOK = ("Paul, Atiemo-Obeng & Kresta (eds.), Handbook of Industrial Mixing, 
 RUSHTON_TABLE = ("Rushton, Costich & Everett (1950), Chem. Eng. Prog. 46, 395 and 467, as "
                  "tabulated in Hendricks (2011), Fundamentals of Water Treatment Unit "
                  "Processes, CRC Press, Table 10.3, p. 258")
-PBT_PAGE = ("Post Mixing Optimization and Solutions, mixing forum page 'PBT' (undated web "
-            "page; generic 4-blade 45-degree W/D = 0.2 turbine)")
+PBT_PAGE = ("Chapple, Kresta, Wall & Afacan (2002), Chem. Eng. Res. Des. 80, 364 (Np of 4-blade "
+            "45-degree turbines, W/D = 0.2, about 1.2-1.35; from memory); the values 1.27 and "
+            "Nq 0.79 also appear on an undated mixing-forum web page")
 
 
 @dataclass(frozen=True)

@@ -57,13 +57,15 @@ def test_disc_turbine_range_holds_the_published_plateaus():
         assert lo <= published <= hi
 
 
-def test_four_blade_pitched_turbine_against_published_page():
-    # Post Mixing Optimization and Solutions, mixing forum page "PBT" (undated): generic
-    # four-blade 45-degree turbine, W/D = 0.2: Np = 1.27, Nq = 0.79 (two decimals: +-0.005)
+def test_four_blade_pitched_turbine_against_published_range():
+    # Chapple, Kresta, Wall & Afacan (2002), Chem. Eng. Res. Des. 80, 364: turbulent Np of
+    # four-blade 45-degree turbines with W/D = 0.2 lies about 1.2-1.35 depending on C/T and
+    # blade thickness (range recalled from memory, not re-read); Nq of such turbines is
+    # commonly quoted as 0.7-0.8 (common practice, no source).
     spec = impeller_type("pitched-blade-4")
     assert spec.blades == 4 and spec.blade_width_ratio == pytest.approx(0.2)
-    assert spec.power_number == pytest.approx(1.27, abs=0.005)
-    assert spec.flow_number == pytest.approx(0.79, abs=0.005)
+    assert 1.2 <= spec.power_number <= 1.35
+    assert 0.7 <= spec.flow_number <= 0.8
 
 
 def test_six_blade_pitched_turbine_against_harriott():
