@@ -121,6 +121,17 @@ def test_every_catalogue_entry_evaluates_and_describes_itself():
         assert 40 < entry.predict(sh_points)[0] < 60
 
 
+def test_constants_recorded_from_memory_say_so():
+    # the flag drives the CLI's "check the source" warning; the note is what people read
+    registries = (published.kla_correlations, published.sherwood_correlations,
+                  published.kl_correlations)
+    flagged = {k for r in registries for k, e in r.items() if e.from_memory}
+    assert flagged == {"smith-1977", "linek-1987", "nocentini-1993", "zhu-2001"}
+    for registry in registries:
+        for key, entry in registry.items():
+            assert ("from memory" in entry.note) or not entry.from_memory, key
+
+
 def test_calderbank_large_bubbles_transfer_faster_than_small():
     # Calderbank and Moo-Young (1961): mobile surfaces (large bubbles) give several times
     # the kL of rigid ones; here Sc = 500 gives 0.42/0.31 * 500**(1/6) = 3.8

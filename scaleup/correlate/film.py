@@ -30,8 +30,11 @@ def sherwood_Frossling(Re, Sc):
 
     Notes
     -----
-    Evaporation of drops into air; laminar boundary layer on a rigid sphere. Range about
-    2 < Re < 800 (from memory).
+    Evaporation of drops (and naphthalene spheres) into air; laminar boundary layer on a rigid
+    sphere. Fuchs (1959) [2]_ reports Frossling's experimental coefficient as 0.276 in
+    :math:`Sh = 2(1 + 0.276\,Re^{1/2} Sc^{1/3})`, i.e. the 0.552 used here, with Sc varied
+    from 0.7 to 2.7 (gas phase): use in liquids (Sc of several hundred) extrapolates in Sc.
+    The Reynolds range, about 2 < Re < 800, is from memory (not found again).
 
     Examples
     --------
@@ -44,6 +47,8 @@ def sherwood_Frossling(Re, Sc):
     ----------
     .. [1] Frossling, N. Uber die Verdunstung fallender Tropfen. Gerlands Beitr. Geophys. 52
        (1938) 170-216.
+    .. [2] Fuchs, N.A. Evaporation and Droplet Growth in Gaseous Media. Pergamon, London
+       (1959).
     """
     return 2.0 + 0.552 * np.sqrt(np.asarray(Re, float)) * np.cbrt(np.asarray(Sc, float))
 
@@ -67,8 +72,11 @@ def sherwood_Ranz_Marshall(Re, Sc):
 
     Notes
     -----
-    Evaporating drops, Re 0 to 200 in the data; widely used up to Re of about 1000 and for
-    liquids (Sc up to about 250 in the original discussion; from memory).
+    Pure-liquid drops 0.06-0.11 cm across evaporating into air up to 220 degC; the study was
+    restricted to 0 < Re < 200; a correlation of existing sphere data showed the results
+    could be extrapolated five times beyond that range, to about Re = 1000 (abstract of
+    [1]_). The data are gas-phase (Sc of order 1): no Schmidt range is stated, so use in
+    liquids is an extrapolation the source does not cover.
 
     Examples
     --------
@@ -115,7 +123,8 @@ def kl_Calderbank_Moo_Young_small(mu, rho, D, delta_rho=None, g: float = G):
 
     Notes
     -----
-    Bubbles and particles smaller than about 2.5 mm behave as rigid spheres.
+    Bubbles and particles smaller than about 2.5 mm behave as rigid spheres (the 2.5 mm
+    boundary is from memory, not found again).
 
     Examples
     --------
@@ -161,7 +170,8 @@ def kl_Calderbank_Moo_Young_large(mu, rho, D, delta_rho=None, g: float = G):
 
     Notes
     -----
-    Bubbles larger than about 2.5 mm with mobile surfaces.
+    Bubbles larger than about 2.5 mm with mobile surfaces (boundary from memory, as for the
+    small-bubble form).
 
     Examples
     --------
@@ -195,7 +205,9 @@ def kl_Lamont_Scott(epsilon, nu, D, K: float = 0.4):
     D : float or array_like
         Diffusivity of the gas in the liquid [m2/s].
     K : float
-        Model constant [-]; 0.4 in [1]_ (values 0.4-0.52 are reported since).
+        Model constant [-]; 0.4 as recalled for [1]_ (from memory, not re-read). Linek et
+        al. (2004) [2]_ fitted 0.523 to kL in water and 0.5 M sodium sulphate stirred by two
+        disc turbines (mean deviation 4.7 %).
 
     Returns
     -------
@@ -205,7 +217,9 @@ def kl_Lamont_Scott(epsilon, nu, D, K: float = 0.4):
     Notes
     -----
     Surface renewal by the smallest (Kolmogorov-scale) eddies; for turbulent liquids with
-    mobile interfaces.
+    mobile interfaces. The form :math:`k_L = K (\varepsilon\nu)^{1/4} Sc^{-1/2}` is the one
+    Linek et al. (2004) [2]_ fit in an aerated stirred tank, with epsilon the power dissipated
+    in the liquid per unit mass.
 
     Examples
     --------
@@ -218,6 +232,9 @@ def kl_Lamont_Scott(epsilon, nu, D, K: float = 0.4):
     ----------
     .. [1] Lamont, J.C., Scott, D.S. An eddy cell model of mass transfer into the surface of
        a turbulent liquid. AIChE J. 16 (1970) 513-519.
+    .. [2] Linek, V., Kordac, M., Fujasova, M., Moucha, T. Gas-liquid mass transfer
+       coefficient in stirred tanks interpreted through models of idealized eddy structure of
+       turbulence in the bubble vicinity. Chem. Eng. Process. 43 (2004) 1511-1517.
     """
     nu = np.asarray(nu, float)
     sc = nu / np.asarray(D, float)

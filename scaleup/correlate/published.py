@@ -60,7 +60,9 @@ def kla_vant_Riet(power_per_volume, superficial_velocity, coalescing: bool = Tru
     -----
     A review of data on air-water and air-electrolyte systems in turbine-stirred vessels.
     Stated ranges: coalescing V < 2.6 m3, non-coalescing 0.002 < V < 4.4 m3, both
-    500 < Pg/V < 10 000 W/m3; stated accuracy 20-40 %. Independent of impeller type.
+    500 < Pg/V < 10 000 W/m3; stated accuracy 20-40 %. Independent of impeller type. The
+    constants are those of [1]_; the ranges were written down from memory and not found again
+    in the public sources searched.
 
     Examples
     --------
@@ -103,7 +105,8 @@ def kla_Smith(power_per_volume, superficial_velocity):
     Notes
     -----
     Disc turbines in vessels of about 0.6 to 1.8 m diameter, coalescing water. Constant and
-    exponents from memory; range approximate (from memory).
+    exponents from memory; range approximate (from memory). Not found again in the public
+    sources searched (papers, review tables, course notes): unconfirmed.
 
     Examples
     --------
@@ -141,7 +144,8 @@ def kla_Linek(power_per_volume, superficial_velocity):
     Notes
     -----
     Measured by a corrected dynamic method in laboratory vessels (about 20 L), water.
-    Constant and exponents from memory; range approximate (from memory).
+    Constant and exponents from memory; range approximate (from memory). Not found again in
+    the public sources searched: unconfirmed.
 
     Examples
     --------
@@ -181,7 +185,8 @@ def kla_Nocentini(power_per_volume, superficial_velocity):
     Notes
     -----
     Tall vessel (H = 4T) with four disc turbines, water. Constant and exponents from memory;
-    range approximate (from memory).
+    range approximate (from memory). Not found again in the public sources searched:
+    unconfirmed.
 
     Examples
     --------
@@ -220,7 +225,8 @@ def kla_Zhu(power_per_volume, superficial_velocity):
     Notes
     -----
     Laboratory vessel, tap water, comparison of impeller types; the disc-turbine line.
-    Constant and exponents from memory; range approximate (from memory).
+    Constant and exponents from memory; range approximate (from memory). Not found again in
+    the public sources searched: unconfirmed.
 
     Examples
     --------
@@ -277,37 +283,39 @@ kla_correlations: dict[str, PublishedCorrelation] = {
             "vant-riet-coalescing", lambda pv, us: kla_vant_Riet(pv, us, True),
             "kLa = 0.026 (Pg/V)^0.4 us^0.5", "van't Riet (1979), Ind. Eng. Chem. Process Des. "
             "Dev. 18, 357", stated_domain(**{GASSED_PV: _PV_RANGE, VESSEL_VOLUME: (None, 2.6)}),
-            _KLA_ARGS, "coalescing", "stated accuracy 20-40 %"),
+            _KLA_ARGS, "coalescing", "stated accuracy 20-40 %; ranges from memory"),
         PublishedCorrelation(
             "vant-riet-noncoalescing", lambda pv, us: kla_vant_Riet(pv, us, False),
             "kLa = 0.002 (Pg/V)^0.7 us^0.2", "van't Riet (1979), Ind. Eng. Chem. Process Des. "
             "Dev. 18, 357",
             stated_domain(**{GASSED_PV: _PV_RANGE, VESSEL_VOLUME: (0.002, 4.4)}),
-            _KLA_ARGS, "non-coalescing", "electrolyte solutions; stated accuracy 20-40 %"),
+            _KLA_ARGS, "non-coalescing",
+            "electrolyte solutions; stated accuracy 20-40 %; ranges from memory"),
         PublishedCorrelation(
             "smith-1977", kla_Smith, "kLa = 0.01 (Pg/V)^0.475 us^0.4",
             "Smith, Middleton, van't Riet (1977), 2nd Eur. Conf. Mixing, F4",
             stated_domain(**{GASSED_PV: (100.0, 5000.0), GAS_VELOCITY: (0.002, 0.05)}),
-            _KLA_ARGS, "coalescing", "constants and range from memory", True),
+            _KLA_ARGS, "coalescing", "constants and range from memory, not found again", True),
         PublishedCorrelation(
             "linek-1987", kla_Linek, "kLa = 4.95e-3 (Pg/V)^0.593 us^0.4",
             "Linek, Vacek, Benes (1987), Chem. Eng. J. 34, 11",
             stated_domain(**{GASSED_PV: (100.0, 5000.0), GAS_VELOCITY: (0.002, 0.02),
                              VESSEL_VOLUME: (None, 0.05)}),
-            _KLA_ARGS, "coalescing", "constants and range from memory", True),
+            _KLA_ARGS, "coalescing", "constants and range from memory, not found again", True),
         PublishedCorrelation(
             "nocentini-1993", kla_Nocentini, "kLa = 0.015 (Pg/V)^0.59 us^0.55",
             "Nocentini, Fajner, Pasquali, Magelli (1993), Ind. Eng. Chem. Res. 32, 19",
             stated_domain(**{GASSED_PV: (100.0, 5000.0), GAS_VELOCITY: (0.001, 0.02),
                              VESSEL_VOLUME: (None, 0.05)}),
-            _KLA_ARGS, "coalescing", "multiple disc turbines; constants and range from memory",
-            True),
+            _KLA_ARGS, "coalescing",
+            "multiple disc turbines; constants and range from memory, not found again", True),
         PublishedCorrelation(
             "zhu-2001", kla_Zhu, "kLa = 0.031 (Pg/V)^0.4 us^0.5",
             "Zhu, Bandopadhayay, Wu (2001), J. Chem. Eng. Japan 34, 579",
             stated_domain(**{GASSED_PV: (100.0, 3000.0), GAS_VELOCITY: (0.002, 0.02),
                              VESSEL_VOLUME: (None, 0.1)}),
-            _KLA_ARGS, "coalescing", "disc turbine; constants and range from memory", True),
+            _KLA_ARGS, "coalescing",
+            "disc turbine; constants and range from memory, not found again", True),
     ]
 }
 
@@ -315,14 +323,17 @@ sherwood_correlations: dict[str, PublishedCorrelation] = {
     c.key: c for c in [
         PublishedCorrelation(
             "frossling", sherwood_Frossling, "Sh = 2 + 0.552 Re^0.5 Sc^(1/3)",
-            "Frossling (1938), Gerlands Beitr. Geophys. 52, 170",
-            stated_domain(**{REYNOLDS: (2.0, 800.0)}), (REYNOLDS, SCHMIDT),
-            note="rigid sphere; range from memory", from_memory=True),
+            "Frossling (1938), Gerlands Beitr. Geophys. 52, 170; coefficient 2 x 0.276 and "
+            "Sc 0.7-2.7 as reported by Fuchs (1959), Evaporation and Droplet Growth",
+            stated_domain(**{REYNOLDS: (2.0, 800.0), SCHMIDT: (0.7, 2.7)}),
+            (REYNOLDS, SCHMIDT),
+            note="rigid spheres in air (gas-phase Sc); Re range from memory"),
         PublishedCorrelation(
             "ranz-marshall", sherwood_Ranz_Marshall, "Sh = 2 + 0.6 Re^0.5 Sc^(1/3)",
-            "Ranz, Marshall (1952), Chem. Eng. Prog. 48, 141",
-            stated_domain(**{REYNOLDS: (None, 200.0), SCHMIDT: (None, 250.0)}),
-            (REYNOLDS, SCHMIDT), note="rigid sphere; range from memory", from_memory=True),
+            "Ranz, Marshall (1952), Chem. Eng. Prog. 48, 141 and 173",
+            stated_domain(**{REYNOLDS: (None, 200.0)}), (REYNOLDS, SCHMIDT),
+            note="drops evaporating in air, 0 < Re < 200 measured (extrapolated by the authors "
+                 "to about 1000); no Sc range stated, liquids are beyond its data"),
     ]
 }
 
@@ -339,17 +350,21 @@ kl_correlations: dict[str, PublishedCorrelation] = {
             "kL Sc^(2/3) = 0.31 (drho mu g / rho^2)^(1/3)",
             "Calderbank, Moo-Young (1961), Chem. Eng. Sci. 16, 39",
             stated_domain(bubble_diameter_m=(None, 2.5e-3)),
-            (KL_VISCOSITY, KL_DENSITY, KL_DIFFUSIVITY), note="rigid bubbles below 2.5 mm"),
+            (KL_VISCOSITY, KL_DENSITY, KL_DIFFUSIVITY),
+            note="rigid bubbles below 2.5 mm (boundary from memory)"),
         PublishedCorrelation(
             "calderbank-moo-young-large", kl_Calderbank_Moo_Young_large,
             "kL Sc^(1/2) = 0.42 (drho mu g / rho^2)^(1/3)",
             "Calderbank, Moo-Young (1961), Chem. Eng. Sci. 16, 39",
             stated_domain(bubble_diameter_m=(2.5e-3, None)),
-            (KL_VISCOSITY, KL_DENSITY, KL_DIFFUSIVITY), note="mobile bubbles above 2.5 mm"),
+            (KL_VISCOSITY, KL_DENSITY, KL_DIFFUSIVITY),
+            note="mobile bubbles above 2.5 mm (boundary from memory)"),
         PublishedCorrelation(
             "lamont-scott", kl_Lamont_Scott, "kL = 0.4 (eps nu)^(1/4) Sc^(-1/2)",
             "Lamont, Scott (1970), AIChE J. 16, 513", stated_domain(),
-            (KL_DISSIPATION, KL_KINEMATIC, KL_DIFFUSIVITY), note="eddy-cell model"),
+            (KL_DISSIPATION, KL_KINEMATIC, KL_DIFFUSIVITY),
+            note="eddy-cell model; K = 0.4 from memory; Linek et al. (2004), Chem. Eng. "
+                 "Process. 43, 1511, fitted 0.523 with two disc turbines"),
     ]
 }
 
