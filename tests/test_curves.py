@@ -259,3 +259,40 @@ def test_probe_step_gives_the_time_constant():
     step = fit_probe_step(t, c, start_s=0.0)
     assert step.tau_p_s == pytest.approx(7.5, abs=4 * step.tau_p_stderr_s)
     assert step.tau_p_stderr_s < 0.1
+
+
+def _public_functions():
+    import importlib
+    import inspect
+
+    names = ["expfit", "curves", "curve_checks", "curve_table", "dynamic", "gas_balance",
+             "sulfite", "flux", "temperature", "replicates", "stored", "loglinear"]
+    for module_name in names:
+        module = importlib.import_module(f"scaleup.measure.{module_name}")
+        for name, func in inspect.getmembers(module, inspect.isfunction):
+            if not name.startswith("_") and func.__module__ == module.__name__:
+                yield f"{module_name}.{name}", func
+
+
+@pytest.mark.parametrize("name,func", list(_public_functions()))
+def test_public_functions_document_every_parameter_with_a_unit(name, func):
+    import inspect
+    import re
+
+    doc = inspect.getdoc(func) or ""
+    assert "Parameters\n----------" in doc or not inspect.signature(func).parameters, name
+    if "Parameters\n----------" not in doc:
+        return
+    section = doc.split("Parameters\n----------", 1)[1].split("\nReturns")[0]
+    documented = {}
+    for block in re.split(r"\n(?=\S)", section):
+        head, _, body = block.partition("\n")
+        names, _, kind = head.partition(" : ")
+        for n in names.split(","):
+            documented[n.strip()] = (kind, body)
+    for param in inspect.signature(func).parameters:
+        assert param in documented, f"{name}: parameter {param} is not documented"
+        kind, body = documented[param]
+        if ("float" in kind or "array" in kind) and "bool" not in kind:
+            assert re.search(r"\[[^\]]*\]", body), f"{name}: {param} has no [unit]"
+    assert "Returns\n-------" in doc, f"{name}: no Returns section"

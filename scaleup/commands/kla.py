@@ -99,7 +99,8 @@ def _print_curve(p: dict) -> None:
     per_h = 3600.0
     lo, hi = p["kla_ci95_per_s"]
     rows = [("file", p["file"]), ("method", p["method"]),
-            ("kLa", f"{sig(p['kla_per_s'] * per_h)} 1/h  (+- {sig(p['kla_stderr_per_s'] * per_h, 2)})"),
+            ("kLa", f"{sig(p['kla_per_s'] * per_h)} 1/h  "
+                    f"(+- {sig(p['kla_stderr_per_s'] * per_h, 2)})"),
             ("95 % interval", f"{sig(lo * per_h)} to {sig(hi * per_h)} 1/h"),
             ("C_inf", f"{sig(p['c_inf'])} {unit}"), ("C0", f"{sig(p['c0'])} {unit}"),
             ("samples fitted", str(p["n_points"])),
@@ -138,7 +139,8 @@ _curve_options = [
                  help='Probe time constant, e.g. "8 s" (default: an ideal probe).'),
     click.option("--window", default="0.2:0.98", show_default=True,
                  help="Fractions of the rise to fit, low:high."),
-    click.option("--time-col", default=None, help="Time column (default: the one with a time unit)."),
+    click.option("--time-col", default=None,
+                 help="Time column (default: the one with a time unit)."),
     click.option("--do-col", default=None, help="DO column (default: the one with a DO unit)."),
 ]
 
@@ -265,7 +267,8 @@ def kla_dynamic(file, probe_tau, window, time_col, do_col, gas_off, gas_on, c_st
         return
     u = tab.unit
     print_pairs([("kLa", f"{sig(d.kla_per_s * 3600)} 1/h (+- {sig(d.kla_stderr_per_s * 3600, 2)})"),
-                 ("OUR", f"{sig(d.our_per_s * 3600)} {u}/h (+- {sig(d.our_stderr_per_s * 3600, 2)})"),
+                 ("OUR", f"{sig(d.our_per_s * 3600)} {u}/h "
+                         f"(+- {sig(d.our_stderr_per_s * 3600, 2)})"),
                  ("DO with gas on", f"{sig(d.c_steady)} {u}"),
                  ("C* = C_ss + OUR/kLa", f"{sig(d.c_star)} {u}"),
                  ("gas off / on", f"{sig(d.gas_off_s)} s / {sig(d.gas_on_s)} s")],
@@ -275,7 +278,8 @@ def kla_dynamic(file, probe_tau, window, time_col, do_col, gas_off, gas_on, c_st
 
 @kla_group.command("gas-balance")
 @click.option("--gas-flow", required=True, help='Dry inlet gas flow, e.g. "25 NL/min" or "1 vvm".')
-@click.option("--y-o2-in", required=True, help="O2 mole fraction of the dry inlet gas, e.g. 0.2095.")
+@click.option("--y-o2-in", required=True,
+              help="O2 mole fraction of the dry inlet gas, e.g. 0.2095.")
 @click.option("--y-o2-out", required=True, help="O2 mole fraction of the dry exit gas.")
 @click.option("--y-co2-in", default="0.0004", show_default=True,
               help="CO2 mole fraction of the dry inlet gas.")

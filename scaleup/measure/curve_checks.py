@@ -38,8 +38,20 @@ class Prepared:
 
 
 def noise_level(c: np.ndarray) -> float:
-    """Standard deviation of the sample noise [unit of ``c``], robust to the trend.
+    """Standard deviation of the sample noise, robust to the trend.
 
+    Parameters
+    ----------
+    c : array
+        Readings [any unit], finite, in time order.
+
+    Returns
+    -------
+    float
+        Noise standard deviation [unit of ``c``]; 0 for fewer than four samples.
+
+    Notes
+    -----
     From the median absolute second difference: a smooth trend hardly contributes to it,
     1.4826 turns a median absolute value into a standard deviation for normal noise, and the
     square root of 6 undoes the differencing (1 - 2 + 1 has a sum of squares of 6).

@@ -46,7 +46,17 @@ class CurveTable:
 
 
 def split_header(cell: str) -> tuple[str, str]:
-    """``"DO [mg/L]"`` -> ``("DO", "mg/L")``; a cell without brackets has unit ``""``.
+    """Split a header cell into its name and its bracketed unit.
+
+    Parameters
+    ----------
+    cell : str
+        A header cell such as ``"DO [mg/L]"``.
+
+    Returns
+    -------
+    (str, str)
+        Name and unit; a cell without brackets has unit ``""``.
 
     Examples
     --------

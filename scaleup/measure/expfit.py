@@ -85,7 +85,22 @@ def response(t: np.ndarray | float, kla: np.ndarray | float,
 
 
 def row_response(t: np.ndarray, kla: np.ndarray, tau_p: np.ndarray) -> np.ndarray:
-    """g for a batch: ``t`` (m, n) [s], one kLa [1/s] and tau_p [s] per row (m,)."""
+    """g for a batch of curves, one kLa and one probe time constant per row.
+
+    Parameters
+    ----------
+    t : array (m, n)
+        Time since the step [s].
+    kla : array (m,)
+        kLa [1/s] of each row.
+    tau_p : array (m,)
+        Probe time constant [s] of each row; 0 for an ideal probe.
+
+    Returns
+    -------
+    array (m, n)
+        g [-], the fraction of the step not yet shown.
+    """
     return _basis(np.asarray(t, float), np.asarray(kla, float), np.asarray(tau_p, float),
                   derivative=False)[0]
 

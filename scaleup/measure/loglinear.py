@@ -13,7 +13,18 @@ import numpy as np
 
 
 def t975(dof: np.ndarray) -> np.ndarray:
-    """Two-sided 95 % Student t quantile for ``dof`` degrees of freedom [-] (nan for dof < 1)."""
+    """Two-sided 95 % Student t quantile.
+
+    Parameters
+    ----------
+    dof : array
+        Degrees of freedom [-].
+
+    Returns
+    -------
+    array
+        t(0.975, dof) [-]; nan where dof < 1.
+    """
     from scipy.stats import t as student_t
 
     with np.errstate(invalid="ignore"):
@@ -21,7 +32,22 @@ def t975(dof: np.ndarray) -> np.ndarray:
 
 
 def goodness(t_row: np.ndarray, c_row: np.ndarray, model_row: np.ndarray) -> dict:
-    """Residuals, residual standard error (3 parameters), R^2 and Durbin-Watson of one fit."""
+    """Residuals, residual standard error, R^2 and Durbin-Watson of one fit.
+
+    Parameters
+    ----------
+    t_row : array
+        Sample times [s].
+    c_row : array
+        Readings [any unit].
+    model_row : array
+        Fitted values [unit of ``c_row``].
+
+    Returns
+    -------
+    dict
+        t, r (residuals), rmse (residual standard error with 3 parameters), r2, dw.
+    """
     r = c_row - model_row
     ssr = float(r @ r)
     sst = float(((c_row - c_row.mean()) ** 2).sum())
@@ -49,7 +75,7 @@ def log_linear_batch(t: np.ndarray, c: np.ndarray, usable: np.ndarray, lo: float
     stars : list
         C* per row [unit of ``c``] or None: C_inf is then the mean of the last 5 % of samples.
     start, length : int arrays (m,)
-        Where each row's usable samples begin and end.
+        Where each row's usable samples begin and end [sample index].
 
     Returns
     -------

@@ -164,10 +164,20 @@ def _rejected(row: dict, reason: str, code: str, now: str) -> tuple[dict, dict]:
 
 
 def run_kla(curves: list[dict]) -> dict:
-    """The run's kLa from its analysed curves: {kla_per_s, kla_stderr_per_s, kla_method}.
+    """The run's kLa from its analysed curves.
 
-    Replicates are combined by :func:`scaleup.measure.replicates.combine_replicates`; empty
-    when no curve of the run gave a kLa (the run keeps what it had).
+    Parameters
+    ----------
+    curves : list of dict
+        The run's live curves with ``kind``, ``kla_per_s`` [1/s] and ``kla_stderr_per_s``
+        [1/s] (None when not analysed or rejected).
+
+    Returns
+    -------
+    dict
+        {kla_per_s [1/s], kla_stderr_per_s [1/s], kla_method}; empty when no curve of the
+        run gave a kLa (the run keeps what it had). Replicates are combined by
+        :func:`scaleup.measure.replicates.combine_replicates`.
     """
     usable = [c for c in curves if c["kind"] in KLA_KINDS and c["kla_per_s"] is not None]
     if not usable:
