@@ -116,6 +116,11 @@ def main(argv: list[str] | None = None) -> None:
         click.echo(f"error: {exc.strerror or exc}: {exc.filename or ''}".rstrip(": "), err=True)
         sys.exit(2)
     except Exception as exc:  # a bug of ours: say so plainly, keep the traceback on request
+        from scaleup.store.db import failure_message
+
+        if (message := failure_message(exc)) is not None:  # a damaged file or a full disk
+            click.echo(f"error: {message}", err=True)
+            sys.exit(2)
         if os.environ.get("SCALEUP_DEBUG"):
             raise
         click.echo(f"internal error ({type(exc).__name__}: {exc}); nothing partial was written."

@@ -31,12 +31,13 @@ async def type_text(pilot, text: str) -> None:
         await pilot.press(KEYS.get(ch, ch))
 
 
-async def fill(pilot, form: RecordForm, field: str, text: str) -> None:
-    """Clear one field of the form and type into it, key by key."""
+async def fill(pilot, form: RecordForm, field: str, text: str, *, keys: bool = False) -> None:
+    """Put text in one field of the form: typed key by key, or set at once (faster)."""
     box = form.query_one(f"#in-{field}")
     box.focus()
-    box.value = ""
-    await type_text(pilot, text)
+    box.value = "" if keys else text
+    if keys:
+        await type_text(pilot, text)
 
 
 def rendered(widget) -> str:
@@ -59,16 +60,17 @@ async def test_add_run_with_a_unit_error_then_the_fix(campaign):
         form = app.screen
         assert isinstance(form, RecordForm)
         for field, text in [("vessel", "T-20"), ("medium", "tap water"),
-                            ("date", "2026-03-02"), ("speed", "450 rmp"),
-                            ("gas-flow", "1 vvm"), ("temperature", "30 degC")]:
+                            ("date", "2026-03-02"), ("gas-flow", "1 vvm"),
+                            ("temperature", "30 degC")]:
             await fill(pilot, form, field, text)
+        await fill(pilot, form, "speed", "450 rmp", keys=True)
         await pilot.press("ctrl+s")
         await settle(pilot)
         assert app.screen is form, "a bad unit must keep the form open"
         error = form.query_one("#err-speed")
         assert error.display and "rmp" in str(error.render())
         assert campaign.count_runs() == 0, "nothing is stored while a field is wrong"
-        await fill(pilot, form, "speed", "450 rpm")
+        await fill(pilot, form, "speed", "450 rpm", keys=True)
         await pilot.press("ctrl+s")
         await settle(pilot)
         assert not isinstance(app.screen, RecordForm)
@@ -155,18 +157,19 @@ async def test_filter_with_units_and_a_bad_filter(campaign):
 
 async def test_a_large_campaign_is_read_a_page_at_a_time(campaign):
     with campaign.transaction():
-        for i in range(300):
+        for i in range(130):
             campaign.add_run({"vessel": "T-20", "medium": "tap water", "run_at": "2026-01-05",
                               "speed_rps": 3.0 + i * 0.01, "gas_flow_mol_s": 0.005,
                               "temperature_k": 303.15})
-    app = make_app(campaign, SETTINGS)
+    # the detail pane waits for the cursor to rest, which it never does here
+    app = make_app(campaign, Settings(page_size=40, detail_delay_s=30.0, plots=False))
     async with app.run_test(size=(100, 30)) as pilot:
         await settle(pilot)
         table = app.screen.query_one(RunTable)
         assert table.row_count == SETTINGS.page_size
         await pilot.press("end")
         await settle(pilot)
-        assert table.current_run()["id"] == 300
+        assert table.current_run()["id"] == 130
         assert table.row_count == SETTINGS.page_size
         await pilot.press("home")
         await settle(pilot)

@@ -154,6 +154,30 @@ def busy_message(path: Path | str | None = None) -> str:
             f"{BUSY_TIMEOUT_MS // 1000} s; nothing was written, please try again")
 
 
+def failure_message(exc: BaseException) -> str | None:
+    """A readable message for an SQLite error caused by the file or the disk, else None.
+
+    None means the error is not the file's fault (a bug in a query, say) and should be
+    reported as such rather than blamed on the user's file.
+    """
+    if not isinstance(exc, sqlite3.DatabaseError):
+        return None
+    text = str(exc).lower()
+    if is_busy(exc):
+        return busy_message()
+    if "malformed" in text or "not a database" in text or "corrupt" in text:
+        return (f"the campaign file is damaged ({exc}); nothing was written. Run `scaleup "
+                "check` for a report and go back to a backup copy")
+    if "full" in text:
+        return "the disk is full; nothing was written"
+    if "readonly" in text or "read-only" in text:
+        return "the campaign file has become read-only; nothing was written"
+    if "disk i/o" in text or "unable to open" in text:
+        return (f"the disk reported an error ({exc}); nothing was written. Run `scaleup "
+                "check` and keep a backup")
+    return None
+
+
 def _check_identity(conn: sqlite3.Connection, path: Path, create: bool = False) -> None:
     app_id = conn.execute("PRAGMA application_id").fetchone()[0]
     version = conn.execute("PRAGMA user_version").fetchone()[0]
@@ -242,9 +266,16 @@ def backup(conn: sqlite3.Connection, target: str | os.PathLike) -> Path:
 
 def check(conn: sqlite3.Connection) -> dict:
     """Integrity and foreign-key check; returns ``{"integrity": [...], "foreign_keys": [...]}``."""
-    integrity = [row[0] for row in conn.execute("PRAGMA integrity_check")]
-    fks = [dict(zip(("table", "rowid", "parent", "fk_index"), row, strict=False))
-           for row in conn.execute("PRAGMA foreign_key_check")]
+    try:
+        integrity = [row[0] for row in conn.execute("PRAGMA integrity_check")]
+    except sqlite3.DatabaseError as exc:  # damaged beyond what the check can walk
+        integrity = [f"the file cannot be read: {exc}"]
+    try:
+        fks = [dict(zip(("table", "rowid", "parent", "fk_index"), row, strict=False))
+               for row in conn.execute("PRAGMA foreign_key_check")]
+    except sqlite3.DatabaseError as exc:
+        fks = [{"table": None, "rowid": None, "parent": None, "fk_index": None,
+                "problem": f"references cannot be checked: {exc}"}]
     return {"integrity": integrity, "foreign_keys": fks,
             "ok": integrity == ["ok"] and not fks,
             "schema_version": conn.execute("PRAGMA user_version").fetchone()[0]}
@@ -275,6 +306,9 @@ def _authorize(action: int, arg1, arg2, database, source) -> int:
         if arg2.lower() in READ_FUNCTIONS:
             return sqlite3.SQLITE_OK
         return _deny(f"calls the function {arg2}()")
+    if arg1 in ("sqlite_master", "sqlite_temp_master"):
+        # asked first when a statement would create or drop something (pragma functions too)
+        return _deny("changes the database schema or calls a pragma")
     return _deny(_ACTIONS.get(action, f"asks for SQLite action {action}")
                  + (f" ({arg1})" if isinstance(arg1, str) and arg1 else ""))
 

@@ -159,15 +159,18 @@ class _Parser:
             self.fail("expected a column name")
         name = ALIASES.get(t.text.lower(), t.text.lower())
         if name not in COLUMNS:
-            following = self.tokens[self.i + 1] if self.i + 1 < len(self.tokens) else None
-            if following is not None and following.text == "(":
-                self.fail(f'"{t.text}(...)" is a function call; a filter cannot call '
-                          "functions")
-            if t.text.lower() in _SQL_WORDS:
-                self.fail(f'"{t.text}" is SQL; a filter only compares columns with values')
+            self.refuse_sql(t, "a filter only compares columns with values")
             self.fail(f'unknown column "{t.text}"')
         self.i += 1
         return name
+
+    def refuse_sql(self, t: Token, why: str) -> None:
+        """Name a function call or an SQL word for what it is (the cursor is on ``t``)."""
+        following = self.tokens[self.i + 1] if self.i + 1 < len(self.tokens) else None
+        if t.kind == "word" and following is not None and following.text == "(":
+            self.fail(f'"{t.text}(...)" is a function call; a filter cannot call functions')
+        if t.text.lower() in _SQL_WORDS:
+            self.fail(f'"{t.text}" is SQL; {why}')
 
     def comparison(self) -> str:
         col = self.column()
@@ -212,9 +215,7 @@ class _Parser:
             return _unquote(t.text)
         if t.kind != "number":
             self.i -= 1
-            if t.text.lower() in _SQL_WORDS:
-                self.fail(f'"{t.text}" is SQL; a filter compares with plain values, not '
-                          "subqueries")
+            self.refuse_sql(t, "a filter compares with plain values, not subqueries")
             self.fail(f'expected a number or a quoted text, not "{t.text}"')
         value = float(t.text)
         unit_words = []
@@ -228,8 +229,12 @@ class _Parser:
                 self.fail(f'column "{col}" takes no unit')
             from scaleup import units
 
-            return units.parse(f"{t.text} {' '.join(unit_words)}", kind, col,
-                               liquid_volume_m3=None)
+            try:
+                return units.parse(f"{t.text} {' '.join(unit_words)}", kind, col,
+                                   liquid_volume_m3=None)
+            except InputError as exc:
+                raise InputError(f"{exc} (the value at position {t.pos + 1})", "filter",
+                                 self.text) from None
         return value
 
 

@@ -79,17 +79,9 @@ def _roll_back(conn: sqlite3.Connection, savepoint: str | None, outer: bool) -> 
 
 def _store_error(exc: sqlite3.OperationalError) -> StoreError:
     """A readable reason for what SQLite refused (busy, disk full, read-only ...)."""
-    text = str(exc).lower()
-    if db.is_busy(exc):
-        return StoreError(db.busy_message())
-    if "full" in text:
-        return StoreError("the disk is full; nothing was written")
-    if "readonly" in text or "read-only" in text:
-        return StoreError("the campaign file has become read-only; nothing was written")
-    if "disk i/o" in text:
-        return StoreError("the disk reported an error while writing; nothing was written. "
-                          "Run `scaleup check` and keep a backup")
-    return StoreError(f"the campaign could not be written ({exc}); nothing was written")
+    message = db.failure_message(exc)
+    return StoreError(message or f"the campaign could not be written ({exc}); nothing was "
+                                 "written")
 
 
 def _name(identifier: str) -> str:
