@@ -455,22 +455,6 @@ class Campaign:
             return self.rows(sql + " AND run_id = ? ORDER BY id", (run_id,))
         return self.rows(sql + " ORDER BY id")
 
-    def preview_curve(self, curve_id: int, *, window: tuple[float, float] | None = None,
-                      tau_p_s: float | None = None, method: str = "nonlinear"):
-        """Analyse one stored gassing-out curve and store nothing: a
-        :class:`scaleup.measure.curves.CurveAnalysis`, for trying windows before accepting
-        one with :meth:`analyse_curves`. Raises ``CurveRejected`` when it gives no kLa."""
-        from scaleup.measure.curves import DEFAULT_WINDOW, analyse_curve
-
-        row = self.curve(curve_id)
-        stored = (row["window_low"], row["window_high"])
-        return analyse_curve(
-            row["time_s"], row["do_values"],
-            tau_p_s=tau_p_s if tau_p_s is not None else (row["probe_tau_s"] or 0.0),
-            window=window or (stored if None not in stored else DEFAULT_WINDOW),
-            start_s=row["gas_on_s"], method=method,
-            c_star=100.0 if row["do_unit"] == "%" else None)
-
     def analyse_curves(self, curve_ids: list[int] | None = None, *,
                        run_ids: list[int] | None = None, **options) -> list[dict]:
         """Analyse stored curves (all live ones when no ids are given), keep each result with
@@ -696,19 +680,16 @@ class Campaign:
     # ---- scale-up studies (the engine is scaleup.scaling; here: names to objects) --------
     def kla_model(self, correlation: str | None, coalescence: str = "coalescing"):
         """(KlaModel, fit id): a saved fit by name, else a published key, else van't Riet."""
-        import json
-
-        from scaleup.correlate.fitting import FitResult
+        from scaleup.errors import NotFound
         from scaleup.scaling.correlation import KlaModel, default_published
 
         if correlation is None:
             return KlaModel.from_published(default_published(coalescence)), None
-        found = self.rows("SELECT id, model_json FROM fit WHERE name = ? AND deleted_at IS NULL",
-                          (correlation,))
-        if found:
-            fit = FitResult.from_dict(json.loads(found[0]["model_json"]))
-            return KlaModel.from_fit(fit, correlation), found[0]["id"]
-        return KlaModel.from_published(correlation), None
+        try:
+            fit, row = self.load_fit(correlation)
+        except NotFound:
+            return KlaModel.from_published(correlation), None
+        return KlaModel.from_fit(fit, correlation), row["id"]
 
     def scale_pilot(self, *, run_id: int | None = None, vessel: str | None = None,
                     speed: Any = None, gas_flow: Any = None, temperature: Any = "30 degC",

@@ -81,3 +81,53 @@ def test_infeasible_design_names_the_limit():
 def test_design_needs_a_duty():
     with pytest.raises(InputError):
         design(VESSEL, WATER_30C, Process(), MODEL)
+
+
+def _public_functions():
+    import inspect
+
+    from scaleup.scaling import (
+        compression,
+        correlation,
+        heat,
+        oxygen,
+        risk,
+        rules,
+        study,
+    )
+    from scaleup.scaling import (
+        design as design_module,
+    )
+    from scaleup.scaling import (
+        evaluate as evaluate_module,
+    )
+
+    for module in (compression, correlation, design_module, evaluate_module, heat, oxygen, risk,
+                   rules, study):
+        for name, func in inspect.getmembers(module, inspect.isfunction):
+            if func.__module__ == module.__name__ and not name.startswith("_"):
+                yield f"{module.__name__}.{name}", func
+
+
+@pytest.mark.parametrize("name,func", list(_public_functions()))
+def test_public_functions_document_parameters_with_units(name, func):
+    import inspect
+    import re
+
+    doc = inspect.getdoc(func) or ""
+    assert doc, f"{name} has no docstring"
+    if "Parameters\n----------" not in doc:
+        return
+    blocks = re.split(r"\n(?=\S)", doc.split("Parameters\n----------", 1)[1].split(
+        "\nReturns")[0])
+    documented = {}
+    for block in blocks:
+        head, _, body = block.partition("\n")
+        names, _, kind = head.partition(" : ")
+        for n in names.split(","):
+            documented[n.strip()] = (kind, body)
+    for param in inspect.signature(func).parameters:
+        assert param in documented, f"{name}: parameter {param} is not documented"
+        kind, body = documented[param]
+        if "float" in kind:
+            assert re.search(r"\[[^\]]*\]", body), f"{name}: {param} has no [unit]"

@@ -63,6 +63,7 @@ def vessel_dict(vessel: Vessel) -> dict:
 
 
 def extrapolation_dict(ev: Evaluation) -> dict:
+    """How far one evaluated point lies outside the correlation's domain, as plain data."""
     ex = ev.extrapolation
     ratio = float(ex.distance_ratio[0]) if np.size(ex.distance_ratio) else float("nan")
     return {"extrapolated": bool(ex.extrapolated[0]), "messages": ex.messages()[0],
