@@ -455,6 +455,22 @@ class Campaign:
             return self.rows(sql + " AND run_id = ? ORDER BY id", (run_id,))
         return self.rows(sql + " ORDER BY id")
 
+    def preview_curve(self, curve_id: int, *, window: tuple[float, float] | None = None,
+                      tau_p_s: float | None = None, method: str = "nonlinear"):
+        """Analyse one stored gassing-out curve and store nothing: a
+        :class:`scaleup.measure.curves.CurveAnalysis`, for trying windows before accepting
+        one with :meth:`analyse_curves`. Raises ``CurveRejected`` when it gives no kLa."""
+        from scaleup.measure.curves import DEFAULT_WINDOW, analyse_curve
+
+        row = self.curve(curve_id)
+        stored = (row["window_low"], row["window_high"])
+        return analyse_curve(
+            row["time_s"], row["do_values"],
+            tau_p_s=tau_p_s if tau_p_s is not None else (row["probe_tau_s"] or 0.0),
+            window=window or (stored if None not in stored else DEFAULT_WINDOW),
+            start_s=row["gas_on_s"], method=method,
+            c_star=100.0 if row["do_unit"] == "%" else None)
+
     def analyse_curves(self, curve_ids: list[int] | None = None, *,
                        run_ids: list[int] | None = None, **options) -> list[dict]:
         """Analyse stored curves (all live ones when no ids are given), keep each result with
