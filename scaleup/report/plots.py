@@ -36,7 +36,7 @@ def _svg(fig) -> str:
 def _figure(width: float = WIDTH_IN, height: float = HEIGHT_IN):
     from matplotlib.figure import Figure
 
-    return Figure(figsize=(width, height), layout="constrained")
+    return Figure(figsize=(width, height))
 
 
 def _style():
@@ -75,7 +75,7 @@ def parity_svg(measured: Sequence[float], predicted: Sequence[float], groups: Se
         for i, g in enumerate(dict.fromkeys(groups)):
             mask = np.array([gg == g for gg in groups]) & ok
             ax.plot(x[mask], y[mask], MARKERS[i % len(MARKERS)], ms=5, alpha=0.8,
-                    label=str(g), linestyle="none")
+                    label=str(g), linestyle="none", gid=f"points-{i}")
         ax.set_xscale("log")
         ax.set_yscale("log")
         ax.set_xlim(low, high)
@@ -104,7 +104,7 @@ def residual_svg(predicted: Sequence[float], residual_log: Sequence[float],
         for i, g in enumerate(dict.fromkeys(groups)):
             mask = np.array([gg == g for gg in groups])
             ax.plot(x[mask], r[mask], MARKERS[i % len(MARKERS)], ms=5, alpha=0.8,
-                    label=str(g), linestyle="none")
+                    label=str(g), linestyle="none", gid=f"points-{i}")
         ax.set_xscale("log")
         ax.set_xlabel(f"predicted [{unit}]")
         ax.set_ylabel("ln(measured / predicted)")
