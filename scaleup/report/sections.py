@@ -66,6 +66,8 @@ def _volume(volume_m3) -> str:
 
 
 def _input_cell(key: str, value) -> Cell:
+    if key == "line_loss" and isinstance(value, (int, float)):
+        return Cell(f"{number(value / 1e3)} kPa", key, float(value))  # a pressure drop
     kind = _INPUT_KINDS.get(key)
     if kind and isinstance(value, (int, float)) and not isinstance(value, bool):
         return Cell(f"{number(lab_value(value, kind))} {unit_label(kind)}", key, float(value))
@@ -111,7 +113,12 @@ def job(study: dict) -> Section:
         s.add(Paragraph(f"kLa target {number(results['kla_target_per_s'] * 3600)} 1/h "
                         f"({results.get('kla_target_source', '')})."))
     if process:
-        s.add(_pairs("process", process, "Values without a unit are SI or dimensionless."))
+        shown_process = dict(process)
+        if shown_process.pop("do_percent", None) and "do_setpoint" in shown_process:
+            shown_process["do_setpoint"] = f"{number(process['do_setpoint'])} % of saturation"
+        elif process.get("do_setpoint") is not None:
+            shown_process["do_setpoint"] = f"{number(process['do_setpoint'])} mol/m3"
+        s.add(_pairs("process", shown_process, "Values without a unit are dimensionless."))
     limits = {k: v for k, v in inputs.get("limits", {}).items() if v is not None}
     s.add(_pairs("limit", limits) if limits else Paragraph("No limits were set."))
     return s

@@ -27,6 +27,11 @@ from scaleup.errors import ImportRejected, InputError
 _HEADER = re.compile(r"^\s*(?P<name>[^\[\]]+?)\s*(?:\[(?P<unit>[^\[\]]*)\])?\s*$")
 _UNITS_CELL = re.compile(r"^\s*\[(?P<unit>[^\[\]]*)\]\s*$")
 _PLAIN_NUMBER = re.compile(r"^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$")
+_COMMA_DECIMAL = re.compile(r"[-+]?\d+(,\d+)?([eE][-+]?\d+)?")
+_THOUSANDS_COMMA = re.compile(r"[-+]?\d{1,3}(,\d{3})+(\.\d+)?")
+_THOUSANDS_POINT = re.compile(r"[-+]?\d{1,3}(\.\d{3})+,\d+")
+_DECIMAL_COMMA = re.compile(r"[-+]?\d*,\d+([eE][-+]?\d+)?")
+_THOUSANDS_SPACE = re.compile(r"[-+]?\d{1,3}( \d{3})+(\.\d+)?")
 MAX_BYTES = 200 * 1024 * 1024
 XLSX_SUFFIXES = (".xlsx", ".xlsm")
 
@@ -335,19 +340,21 @@ def _separators(value: str, decimal_comma: bool) -> str:
         if "." in number:
             raise InputError(f'"{value}": with decimal commas a point is ambiguous (thousands '
                              "separator or decimal point?); write the number without it")
-        if re.fullmatch(r"[-+]?\d+(,\d+)?([eE][-+]?\d+)?", number):
+        if _COMMA_DECIMAL.fullmatch(number):
             return value.replace(",", ".", 1)
         return value
-    if re.fullmatch(r"[-+]?\d{1,3}(,\d{3})+(\.\d+)?", number):
+    if _PLAIN_NUMBER.match(value):  # the common case: nothing to refuse
+        return value
+    if _THOUSANDS_COMMA.fullmatch(number):
         raise InputError(f'"{value}" has thousands separators; write the plain number '
                          f'"{number.replace(",", "")}"')
-    if re.fullmatch(r"[-+]?\d{1,3}(\.\d{3})+,\d+", number):
+    if _THOUSANDS_POINT.fullmatch(number):
         plain = number.replace(".", "").replace(",", ".")
         raise InputError(f'"{value}" uses a decimal comma and thousands points; write "{plain}"')
-    if re.fullmatch(r"[-+]?\d*,\d+([eE][-+]?\d+)?", number):
+    if _DECIMAL_COMMA.fullmatch(number):
         raise InputError(f'"{value}" uses a decimal comma; write '
                          f'"{number.replace(",", ".")}" (or import with --decimal-comma)')
-    if re.fullmatch(r"[-+]?\d{1,3}( \d{3})+(\.\d+)?", value):
+    if _THOUSANDS_SPACE.fullmatch(value):
         raise InputError(f'"{value}" has spaces as thousands separators; write '
                          f'"{value.replace(" ", "")}"')
     return value
