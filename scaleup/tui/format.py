@@ -19,6 +19,14 @@ def _affine(kind: str, unit: str | None) -> tuple[float, float]:
     return units.convert(1.0, kind, unit) - offset, offset
 
 
+def warm(kinds: tuple[str, ...] = ("speed", "temperature", "pressure", "kla", "volume",
+                                     "power_per_volume", "velocity", "time")) -> None:
+    """Build the unit registry and the common factors (call it from a worker thread, so
+    the first table does not wait a third of a second for pint)."""
+    for kind in kinds:
+        _affine(kind, None)
+
+
 def to_lab(value_si: float | None, kind: str, unit: str | None = None) -> float | None:
     """An SI value of ``kind`` in ``unit`` (the kind's lab unit by default)."""
     if value_si is None:

@@ -44,7 +44,7 @@ ENTRIES = (
 )
 # which column of the rules table a broken limit belongs to
 MARGIN_COLUMN = {"tip speed": "tip", "duty": "OTR", "critical DO": "OTR", "P/V": "P/V",
-                 "motor": "P/V", "superficial velocity": "us", "speed": "N", "vvm": "vvm",
+                 "motor": "P/V", "superficial velocity": "Qg", "speed": "N", "vvm": "Qg",
                  "flooding margin": "regime", "heat removal": "P/V"}
 
 
@@ -82,14 +82,14 @@ def read_inputs(texts: dict[str, str]) -> tuple[dict, dict[str, str]]:
 def rules_table(results: dict) -> Table:
     table = Table(box=None, padding=(0, 1), header_style="bold", show_edge=False)
     heads = [("rule", "", "left"), ("N", "rpm", "right"), ("Qg", "Nm3/h", "right"),
-             ("vvm", "", "right"), ("P/V", "kW/m3", "right"), ("tip", "m/s", "right"),
-             ("us", "mm/s", "right"), ("kLa", "1/h", "right"), ("OTR", "mmol/L/h", "right"),
-             ("regime", "", "left")]
+             ("P/V", "kW/m3", "right"), ("tip", "m/s", "right"), ("kLa", "1/h", "right"),
+             ("OTR", "mmol/L/h", "right"), ("regime", "", "left")]
     for name, unit, justify in heads:
-        table.add_column(f"{name}\n{unit}", justify=justify, no_wrap=True)
+        table.add_column(f"{name}\n{unit}", justify=justify, no_wrap=True,
+                         min_width=11 if name == "rule" else None)
     for r in results["rules"]:
         if r.get("speed_rps") is None:
-            table.add_row(r["rule"], *["-"] * 8, Text(r.get("note") or "no solution",
+            table.add_row(r["rule"], *["-"] * 6, Text(r.get("note") or "no solution",
                                                       style="italic"))
             continue
         broken = {MARGIN_COLUMN.get(k, "") for k, m in (r.get("margins") or {}).items()
@@ -97,17 +97,15 @@ def rules_table(results: dict) -> Table:
         cells = {
             "N": fmt.lab(r["speed_rps"], "speed", digits=3),
             "Qg": units_nm3h(r["gas_flow_mol_s"]),
-            "vvm": fmt.lab(r["vvm"], "fraction", digits=2),
             "P/V": fmt.lab(r["power_per_volume_w_m3"], "power_per_volume", digits=3),
             "tip": fmt.lab(r["tip_speed_m_s"], "velocity", digits=3),
-            "us": fmt.lab(r["superficial_gas_velocity_m_s"], "velocity", "mm/s", digits=3),
             "kLa": fmt.lab(r["kla_per_s"], "kla", digits=3),
             "OTR": fmt.lab(r["otr_capacity_mol_m3_s"], "rate", digits=3),
             "regime": str(r["regime"]).replace("completely dispersed", "dispersed"),
         }
         row = [Text(("✗ " if r["violations"] else "✓ ") + r["rule"],
                     style="bold" if r["violations"] else "")]
-        for key in ("N", "Qg", "vvm", "P/V", "tip", "us", "kLa", "OTR", "regime"):
+        for key in ("N", "Qg", "P/V", "tip", "kLa", "OTR", "regime"):
             row.append(Text(cells[key] + (" !" if key in broken else ""),
                             style=BROKEN if key in broken else ""))
         table.add_row(*row)
@@ -200,7 +198,8 @@ class ProjectionScreen(WorkScreen):
         if box.value:
             return
         with self.store_lock:
-            measured = self.campaign.runs("kla is not null", order_by="kla", descending=True,
+            # the largest pilot vessel is the closest to production
+            measured = self.campaign.runs("kla is not null", order_by="volume", descending=True,
                                           limit=1)
         if measured:
             box.value = str(measured[0]["id"])

@@ -55,6 +55,8 @@ class RunsScreen(WorkScreen):
         self.request = 0
         self.detail_timer = None
         self.detail_run_id: int | None = None
+        self.cursor_wanted: int | None = None
+        self.heading_to: int | None = None
 
     def body(self) -> ComposeResult:
         with Vertical(id="runs-top"):
@@ -74,6 +76,8 @@ class RunsScreen(WorkScreen):
     def load(self, offset: int, *, cursor: int | None = None) -> None:
         self.request += 1
         self.cursor_wanted = cursor
+        # keys pressed while a page is on its way count from where they were heading
+        self.heading_to = None if cursor is None else offset + cursor
         self._read_page(self.where, self.order_by, self.descending, offset,
                         self.settings.page_size, self.request)
 
@@ -92,12 +96,16 @@ class RunsScreen(WorkScreen):
         except InputError as exc:
             self.post_message(RunsQueryFailed(str(exc)))
             return
+        fmt.warm()
         self.post_message(RunsPageLoaded(rows, total, offset, request))
 
     @on(RunsPageLoaded)
     def _page_loaded(self, message: RunsPageLoaded) -> None:
         if message.request != self.request:
             return
+        if self.cursor_wanted is not None and self.heading_to is not None:
+            self.cursor_wanted = self.heading_to - message.offset  # the offset may be clamped
+        self.heading_to = None
         table = self.query_one(RunTable)
         table.show_page(message.rows, message.offset, message.total, cursor=self.cursor_wanted)
         self.query_one("#filter", Input).remove_class("-invalid")
@@ -132,7 +140,8 @@ class RunsScreen(WorkScreen):
     @on(RunTable.PageWanted)
     def _page_wanted(self, message: RunTable.PageWanted) -> None:
         table = self.query_one(RunTable)
-        here = table.page_offset + max(table.cursor_row, 0)
+        here = self.heading_to if self.heading_to is not None else \
+            table.page_offset + max(table.cursor_row, 0)
         if message.to_end:
             target = 0 if message.step < 0 else table.total - 1
         elif abs(message.step) == 1:
@@ -383,7 +392,7 @@ class RunsScreen(WorkScreen):
         with self.store_lock:
             deleted = [h["record_id"] for h in self.campaign.history("run", limit=200)
                        if h["action"] == "delete"]
-        spec = F.Field("run_id", "run number", "int", True, 1, None,
+        spec = F.Field("run_id", "run number", "int", True, 1, 2**53,
                        help="The number (#) of a deleted run.")
 
         def save(form: RecordForm) -> int:
