@@ -39,9 +39,19 @@ def test_log_mean_agrees_with_props_layer():
 def test_driving_force_methods_agree_without_depletion_in_a_flat_vessel():
     flat = oxygen.OxygenSolubility(1.0, 1.0, 1.0, 1e5, 1e5, 1e5, 0.21)
     values = [oxygen.driving_force(flat, 0.21, 0.21, 0.05, m) for m in oxygen.DRIVING_FORCES]
-    assert values == pytest.approx([0.16] * 3, rel=1e-9)
+    assert values == pytest.approx([0.16] * len(oxygen.DRIVING_FORCES), rel=1e-9)
     with pytest.raises(InputError):
         oxygen.driving_force(flat, 0.21, 0.21, 0.05, "geometric")
+
+
+def test_backmixed_driving_force_uses_exit_gas_at_mid_height():
+    # well-mixed gas: the liquid everywhere sees the exit gas, at the mid-height pressure
+    sol = oxygen.OxygenSolubility(1.6, 1.3, 1.0, 2e5, 1.5e5, 1e5, 0.21)
+    assert oxygen.driving_force(sol, 0.21, 0.12, 0.05, "backmixed") == pytest.approx(
+        1.3 * 0.12 - 0.05, rel=1e-12)
+    # it is the lowest of the four once the gas is depleted (no credit for the inlet gas)
+    values = {m: oxygen.driving_force(sol, 0.21, 0.12, 0.05, m) for m in oxygen.DRIVING_FORCES}
+    assert min(values, key=values.get) == "backmixed"
 
 
 def test_otr_capacity_is_a_consistent_fixed_point():

@@ -102,8 +102,9 @@ def process_options(f):
         click.option("--rq", type=float, default=1.0, show_default=True,
                      help="Respiratory quotient (CO2 out per O2 taken up) for the exit gas."),
         click.option("--driving-force", default="log-mean", show_default=True,
-                     type=click.Choice(["log-mean", "mid-depth", "arithmetic"]),
-                     help="Mean O2 driving force over the liquid height."),
+                     type=click.Choice(["log-mean", "mid-depth", "arithmetic", "backmixed"]),
+                     help="Mean O2 driving force over the liquid height (backmixed: exit "
+                          "gas everywhere, C* at mid-height)."),
         click.option("--gassed-method", default=None,
                      type=click.Choice(["type", "Cui", "Hughmark", "Michel_Miller"]),
                      help="Gassed-power method (default: per impeller type)."),

@@ -178,14 +178,15 @@ def operating_point(vessel: Vessel, speed, gas_flow, temperature: float, rho: fl
 
     Examples
     --------
-    Harriott (2003), Example 7.6: T = 4 m, H = 12 m, one disc turbine (Np 6) and two
-    pitched-blade turbines (Np 1.7), D = 1.333 m, 120 rpm, water: about 316 kW ungassed.
+    Harriott (2003), Example 7.6: T = 4 m, H = 12 m, a disc turbine (Np 6) 2 m off the bottom
+    and two pitched-blade turbines (Np 1.7; heights not given, placed 4 m apart here),
+    D = 1.333 m, 120 rpm, 1.5 mPa s: 316 kW ungassed.
 
     >>> from scaleup.hydro.geometry import Impeller, Vessel
-    >>> imps = (Impeller("disc-turbine", 1.333, 1.33, power_number=6.0),
-    ...         Impeller("pitched-blade-6", 1.333, 5.0, power_number=1.7),
-    ...         Impeller("pitched-blade-6", 1.333, 9.0, power_number=1.7))
-    >>> op = operating_point(Vessel(4.0, 12.0, imps), 2.0, 0.0, 298.15, 1000.0, 1e-3)
+    >>> imps = (Impeller("disc-turbine", 1.333, 2.0, power_number=6.0),
+    ...         Impeller("pitched-blade-6", 1.333, 6.0, power_number=1.7),
+    ...         Impeller("pitched-blade-6", 1.333, 10.0, power_number=1.7))
+    >>> op = operating_point(Vessel(4.0, 12.0, imps), 2.0, 0.0, 303.15, 1000.0, 1.5e-3)
     >>> round(op.power / 1000)
     316
     """

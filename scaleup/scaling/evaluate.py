@@ -65,7 +65,7 @@ class Process:
     respiratory_quotient : float
         [-].
     driving_force : str
-        "log-mean", "mid-depth" or "arithmetic".
+        "log-mean", "mid-depth", "arithmetic" or "backmixed" (see :mod:`.oxygen`).
     gassed_method : str or None
         Gassed-power method of the hydro layer.
     drive_efficiency, compressor_efficiency : float

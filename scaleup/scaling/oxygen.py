@@ -13,8 +13,10 @@ Conventions (stated once):
 * Driving force (``method``): "log-mean" (default) between the bottom (sparger pressure, inlet
   gas) and the top (head pressure, exit gas), the plug-flow gas result for a well-mixed
   liquid; "mid-depth": C* at mid-height pressure with the mean of inlet and exit fractions;
-  "arithmetic": the mean of the two end driving forces. Where an end has no driving force
-  left (gas depleted to equilibrium) the log mean is taken as zero.
+  "arithmetic": the mean of the two end driving forces; "backmixed": C* at mid-height
+  pressure with the exit-gas fraction throughout (a well-mixed gas phase, the conservative
+  reading for a large stirred vessel; Harriott 2003, Ex. 7.6). Where an end has no driving
+  force left (gas depleted to equilibrium) the log mean is taken as zero.
 * OTR capacity: the transfer the vessel sustains with the liquid held at ``c_liquid`` (the DO
   set-point), ``N = kLa V dC(N)``, solved for N because the exit gas depends on N.
 * The duty is met exactly when ``kLa >= OUR / dC(OUR V)`` (:func:`required_kla`): the
@@ -32,7 +34,7 @@ from scaleup.hydro.geometry import Vessel
 from scaleup.units import G
 
 AIR_O2_FRACTION = 0.20946  # dry air (the Benson-Krause reference)
-DRIVING_FORCES = ("log-mean", "mid-depth", "arithmetic")
+DRIVING_FORCES = ("log-mean", "mid-depth", "arithmetic", "backmixed")
 _ITERATIONS = 60  # bisection halvings: 2^-60 of the bracket, far below any stated accuracy
 
 
@@ -170,7 +172,7 @@ def driving_force(solubility: OxygenSolubility, inlet_fraction, exit_fraction, c
     c_liquid : float or array
         Dissolved O2 of the (well-mixed) liquid [mol/m3].
     method : str
-        "log-mean", "mid-depth" or "arithmetic".
+        "log-mean", "mid-depth", "arithmetic" or "backmixed".
 
     Returns
     -------
@@ -188,6 +190,8 @@ def driving_force(solubility: OxygenSolubility, inlet_fraction, exit_fraction, c
     c = np.asarray(c_liquid, float)
     if method == "mid-depth":
         return _out(solubility.middle * (y_in + y_out) / 2.0 - c)
+    if method == "backmixed":
+        return _out(solubility.middle * y_out - c)
     d_bottom = solubility.bottom * y_in - c
     d_top = solubility.top * y_out - c
     if method == "arithmetic":
