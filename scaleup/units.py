@@ -281,7 +281,9 @@ def _quantity(value: float, unit: str, field: str, text):
 
     ureg = registry()
     try:
-        return ureg.Quantity(value, _clean_unit(unit))
+        q = ureg.Quantity(value, _clean_unit(unit))
+        q.dimensionality  # noqa: B018 - a logarithmic unit inside a compound ("1/dB") has none
+        return q
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError,
             AttributeError, TypeError, ValueError, SyntaxError, AssertionError) as exc:
         raise UnknownUnit(f'"{text}": unknown unit "{unit}"', field, text) from exc

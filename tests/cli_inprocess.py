@@ -26,8 +26,8 @@ class Outcome:
                 or self.code not in (0, 1, 2))
 
 
-class Hang(Exception):
-    pass
+class Hang(BaseException):
+    """Raised by the alarm; a BaseException so that the CLI's error handler lets it through."""
 
 
 def _alarm(signum, frame):

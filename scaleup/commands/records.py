@@ -172,8 +172,9 @@ def vessel_edit(ctx, vessel, expected_version, as_json, **kwargs):
     if not changes:
         raise click.UsageError("give at least one field to change, e.g. --liquid-height '1 m'")
     with _campaign(ctx) as c:
-        c.edit_vessel(vessel, changes, expected_version=expected_version)
-        _show_vessel(c.vessel(vessel if not changes.get("name") else changes["name"]), as_json)
+        edited = c.edit_vessel(vessel, changes, expected_version=expected_version)
+        # by id: a new name that looks like a number ("0") must not be read as an id
+        _show_vessel(c.vessel(edited["id"]), as_json)
 
 
 @vessel_group.command("delete")
@@ -285,8 +286,8 @@ def medium_edit(ctx, medium, expected_version, as_json, **kwargs):
     if not changes:
         raise click.UsageError("give at least one field to change, e.g. --viscosity '2 mPa s'")
     with _campaign(ctx) as c:
-        c.edit_medium(medium, changes, expected_version=expected_version)
-        _show_medium(c.medium(changes.get("name") or medium), as_json)
+        edited = c.edit_medium(medium, changes, expected_version=expected_version)
+        _show_medium(c.medium(edited["id"]), as_json)
 
 
 @medium_group.command("delete")

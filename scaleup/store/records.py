@@ -92,7 +92,10 @@ def _name(identifier: str) -> str:
 
 
 def rows(conn: sqlite3.Connection, sql: str, params: tuple | dict = ()) -> list[dict]:
-    cur = conn.execute(sql, params)
+    try:
+        cur = conn.execute(sql, params)
+    except OverflowError:  # an id or count typed beyond what SQLite stores (2**63 - 1)
+        raise InputError("a number given is too large (at most 9223372036854775807)") from None
     names = [d[0] for d in cur.description]
     return [dict(zip(names, r, strict=True)) for r in cur.fetchall()]
 
@@ -142,6 +145,8 @@ def insert(conn: sqlite3.Connection, table: str, values: dict[str, Any], *,
             cur = conn.execute(sql, [values[c] for c in columns])
         except sqlite3.IntegrityError as exc:
             raise constraint_error(exc, table, values) from exc
+        except OverflowError:
+            raise _too_large(values) from None
         record_id = cur.lastrowid
         if table in VERSIONED or table in ("impeller", "sparger", "medium_salt"):
             _audit(conn, table, record_id, action, None, get(conn, table, record_id,
@@ -170,6 +175,8 @@ def update(conn: sqlite3.Connection, table: str, record_id: int, changes: dict[s
                 [*changes.values(), record_id, old["row_version"]])
         except sqlite3.IntegrityError as exc:
             raise constraint_error(exc, table, changes) from exc
+        except OverflowError:
+            raise _too_large(changes) from None
         if cur.rowcount != 1:
             now = get(conn, table, record_id, include_deleted=True)
             raise ConflictError(conflict_message(table, record_id, now, changes,
@@ -216,6 +223,11 @@ def last_change(conn: sqlite3.Connection, actor: str | None = None) -> dict | No
         params = (actor,)
     found = rows(conn, sql + " ORDER BY id DESC LIMIT 1", params)
     return found[0] if found else None
+
+
+def _too_large(values: dict) -> InputError:
+    big = next((k for k, v in values.items() if isinstance(v, int) and abs(v) >= 2**63), None)
+    return InputError("is too large to store (at most 9223372036854775807)", big, values.get(big))
 
 
 _CHECK = re.compile(r"CHECK constraint failed: (.*)$")

@@ -141,6 +141,8 @@ def _read_json(text: str, source: str, allow_empty: bool) -> Table:
         data = json.loads(text)
     except json.JSONDecodeError as exc:
         reject(source, f"not valid JSON: {exc.msg} at line {exc.lineno}")
+    except RecursionError:  # "[[[[...": nested deeper than the parser goes
+        reject(source, "not a JSON table: it is nested too deeply")
     if not isinstance(data, dict) or not isinstance(data.get("columns"), list) or \
             not isinstance(data.get("rows"), list):
         reject(source, 'a JSON table is an object with "columns" (header cells) and "rows" '
