@@ -78,6 +78,17 @@ def test_infeasible_design_names_the_limit():
     assert any(text.startswith("duty") or "tip speed" in text for text in d.infeasibility)
 
 
+def test_deeply_flooded_points_keep_a_finite_kla():
+    # slow and heavily gassed (Fl of the bottom disc turbine far above 0.1): the gassed
+    # power is held above zero in the hydro layer, so P/V, kLa and OTR stay finite
+    with np.errstate(all="raise"):
+        ev = evaluate(VESSEL, np.array([0.3, 2.0]), 40.0, WATER_30C, Process(our=40 / 3600),
+                      MODEL)
+    assert ev.op.flow_number[0] > 1.0
+    assert np.all(ev.op.gassed_power > 0) and np.all(np.isfinite(ev.kla))
+    assert np.all(ev.kla > 0) and ev.kla[0] < ev.kla[1]
+
+
 def test_design_needs_a_duty():
     with pytest.raises(InputError):
         design(VESSEL, WATER_30C, Process(), MODEL)

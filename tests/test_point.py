@@ -51,6 +51,17 @@ def test_pieces_add_up():
     assert op.warnings == ()
 
 
+def test_deeply_flooded_disc_turbine_keeps_its_held_power_and_says_so():
+    v = pilot()
+    op = operating_point(v, 3.0, 0.2, **WATER)  # Fl about 1.5: far above Cui's range
+    assert op.flow_number > 1.0
+    assert op.gassed_power == pytest.approx(op.power * power.CUI_RATIO_FLOOR, rel=1e-12)
+    assert any("above the range of Cui et al. (1996), Fl <= 0.1: Pg/P held at 0.435" in w
+               for w in op.warnings)
+    # inside the range there is no such note
+    assert not any("Cui" in w for w in operating_point(v, 10.0, 0.003, **WATER).warnings)
+
+
 def test_pressure_basis_changes_only_the_superficial_velocity():
     v = Vessel(2.0, 6.0, (Impeller("disc-turbine", 0.7, 0.7),), head_pressure=1.5e5)
     kw = dict(speed=1.5, gas_flow=2.0, **WATER)

@@ -90,6 +90,22 @@ def test_cui_is_one_without_gas_and_falls_monotonically():
     assert np.all(steps < 0.005)
 
 
+def test_cui_is_held_at_its_fl_0_1_value_beyond_its_range():
+    # below Fl = 0.1 the published lines, unchanged
+    assert power.gassed_power_ratio_Cui(0.08) == pytest.approx(0.62 - 1.85 * 0.08, abs=1e-12)
+    assert power.gassed_power_ratio_Cui(0.1) == pytest.approx(0.435, abs=1e-12)
+    # above it held, never zero or negative (the line itself is 0 at 0.335, -0.31 at 0.5)
+    fl = np.array([0.1001, 0.2, 0.335, 0.5, 5.0])
+    assert power.gassed_power_ratio_Cui(fl) == pytest.approx([0.435] * 5, abs=1e-12)
+    assert power.CUI_RATIO_FLOOR == pytest.approx(0.435, abs=1e-12)
+
+
+def test_gassed_power_stays_positive_when_deeply_flooded():
+    q = np.array([1e-3, 1e-2, 1e-1])  # Fl = 0.1, 1, 10 at N = 10 rev/s, D = 0.1 m
+    pg = power.gassed_power(100.0, 10.0, 0.1, q, impeller="disc-turbine", method="Cui")
+    assert pg == pytest.approx([43.5] * 3, rel=1e-12)
+
+
 def test_linear_ratio_has_its_floor():
     assert power.gassed_power_ratio_linear(1.0, "pitched-blade-4") == pytest.approx(0.55)
     assert power.gassed_power_ratio_linear(0.0, "hydrofoil-wide") == pytest.approx(1.0)

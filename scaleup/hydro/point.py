@@ -247,6 +247,12 @@ def operating_point(vessel: Vessel, speed, gas_flow, temperature: float, rho: fl
                                 f"{', '.join(valid)}, not {imp.type}")
             if spec.gassed == "none" and method == "type":
                 warnings.append(f"no gassed-power data for {imp.type}: Pg = P assumed")
+            fl_i = q_i / (n * imp.diameter ** 3)
+            if (method == "Cui" or (method == "type" and spec.gassed == "Cui")) and np.any(
+                    fl_i > power.CUI_FLOW_NUMBER_MAX):
+                warnings.append(f"{imp.type}: Fl = {np.max(fl_i):.3g} is above the range of "
+                                f"Cui et al. (1996), Fl <= {power.CUI_FLOW_NUMBER_MAX:g}: "
+                                f"Pg/P held at {power.CUI_RATIO_FLOOR:.3g}")
         if np.any(re_i < spec.re_turbulent):
             zone = "laminar" if np.all(re_i <= spec.re_laminar) else "transitional"
             warnings.append(f"{imp.type}: Re = {np.min(re_i):.3g} is {zone}; power number "

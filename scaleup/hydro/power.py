@@ -200,7 +200,7 @@ def interaction_factors(spacings_over_d) -> np.ndarray:
     than that the impeller streams merge and the upper impeller draws less; we reduce its
     share linearly from 1 at s = D to 0.4 at s = 0.5 D and hold 0.4 below that (common
     practice, no source: no published factor was found in the sources searched). Harriott
-    (2003), Ex. 7.6, adds the powers of three impellers 4 m apart with D = 1.33 m.
+    (2003), Ex. 7.6, adds the powers of its three impellers (D = 1.333 m, 12 m of liquid).
 
     Parameters
     ----------
@@ -327,12 +327,19 @@ def gassed_power_ratio_Hughmark(speed, diameter, gas_flow_actual, liquid_volume,
     return _out(np.minimum(ratio, 1.0))
 
 
+# Cui et al. (1996) beyond their data: the lower branch reaches zero at Fl = 0.335, so it is
+# applied up to CUI_FLOW_NUMBER_MAX and held at its value there above.
+CUI_FLOW_NUMBER_MAX = 0.1
+CUI_RATIO_FLOOR = 0.62 - 1.85 * CUI_FLOW_NUMBER_MAX  # 0.435
+
+
 def gassed_power_ratio_Cui(flow_number):
     """Gassed-to-ungassed power ratio of a disc turbine, Cui, van der Lans & Luyben [1]_ [-].
 
     .. math::
         \\frac{P_g}{P} = \\begin{cases} 1 - 12.6\\,Fl & Fl < 0.035 \\\\
-        0.62 - 1.85\\,Fl & Fl \\ge 0.035 \\end{cases}
+        0.62 - 1.85\\,Fl & 0.035 \\le Fl \\le 0.1 \\\\
+        0.435 & Fl > 0.1 \\end{cases}
 
     Parameters
     ----------
@@ -342,17 +349,25 @@ def gassed_power_ratio_Cui(flow_number):
     Returns
     -------
     float or array
-        Pg/P [-].
+        Pg/P [-], at least :data:`CUI_RATIO_FLOOR` (0.435).
 
     Notes
     -----
     Disc turbines, single and multiple, pilot to production scale. The two branches meet
-    at Fl = 0.035 within 0.005.
+    at Fl = 0.035 within 0.005. Read on, the lower branch would fall to zero at Fl = 0.335
+    and below it after, which no impeller does: a flooded disc turbine still draws a good
+    part of its ungassed power. The correlation is applied up to Fl = 0.1
+    (:data:`CUI_FLOW_NUMBER_MAX`; the upper end of the data behind it, from memory: the
+    paper's stated range was not found again) and held at its value there, 0.435, above; a
+    flooded disc turbine keeps a Pg/P of about 0.3-0.5 (from memory). Callers warn when Fl
+    is above 0.1 (:func:`scaleup.hydro.point.operating_point` does).
 
     Examples
     --------
     >>> round(gassed_power_ratio_Cui(0.02), 3)
     0.748
+    >>> round(gassed_power_ratio_Cui(0.5), 3)  # beyond the data: held at the Fl = 0.1 value
+    0.435
 
     References
     ----------
@@ -361,7 +376,8 @@ def gassed_power_ratio_Cui(flow_number):
        Sci. 51, 2631-2636.
     """
     fl = np.asarray(flow_number, float)
-    return _out(np.where(fl < 0.035, 1.0 - 12.6 * fl, 0.62 - 1.85 * fl))
+    return _out(np.where(fl < 0.035, 1.0 - 12.6 * fl,
+                         np.maximum(0.62 - 1.85 * fl, CUI_RATIO_FLOOR)))
 
 
 def gassed_power_ratio_linear(flow_number, spec: ImpellerType | str):

@@ -35,8 +35,7 @@ from scaleup.errors import InputError
 # the same 40 % is assumed (common practice, no source).
 PUBLISHED_ACCURACY = {"vant-riet-coalescing": 0.40, "vant-riet-noncoalescing": 0.40}
 DEFAULT_PUBLISHED_ACCURACY = 0.40
-Z95 = 1.959963984540054
-MIN_POWER_PER_VOLUME = 1e-6  # W/m3: floor so that log-linear forms stay finite  # two-sided 95 % normal quantile
+Z95 = 1.959963984540054  # two-sided 95 % normal quantile
 
 
 @dataclass(frozen=True)
@@ -182,9 +181,9 @@ def kla_points(op, coalescence: str = "coalescing") -> dict[str, np.ndarray]:
         Gassed and ungassed P/V [W/m3], us [m/s], viscosity [Pa s], density [kg/m3],
         coalescence and vessel volume [m3], one value per point.
     """
-    # a deeply flooded impeller can come out with no gassed power at all: kLa ~ 0 there
-    pgv = np.maximum(np.atleast_1d(np.asarray(op.gassed_power_per_volume, float)).ravel(),
-                     MIN_POWER_PER_VOLUME)
+    # gassed power is positive wherever the speed is (hydro.power holds Pg/P above a floor
+    # even when deeply flooded), so the log-linear forms stay finite
+    pgv = np.atleast_1d(np.asarray(op.gassed_power_per_volume, float)).ravel()
     pv = np.broadcast_to(np.asarray(op.power_per_volume, float), np.shape(
         op.gassed_power_per_volume)).ravel()
     us = np.broadcast_to(np.asarray(op.superficial_gas_velocity, float), np.shape(

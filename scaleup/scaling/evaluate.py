@@ -248,9 +248,6 @@ def evaluate(vessel: Vessel, speed, gas_flow, liquid: Liquid, process: Process,
     motor = np.asarray(op.power, float) / process.drive_efficiency
     margins = _margins(op, limits, process, design_kla, kla_req, load, removal, motor, volume,
                        g, args, shape)
-    if np.any(pg <= 0):
-        notes.append("the gassed-power correlation gives no power at some points (deeply "
-                     "flooded, far outside its range): kLa there is taken as nil")
     if process.o2_fraction > oxygen.AIR_O2_FRACTION + 1e-6:
         notes.append(f"inlet gas with {process.o2_fraction:.3g} O2 (enriched): see the "
                      "oxygen caution")
@@ -265,12 +262,9 @@ def evaluate(vessel: Vessel, speed, gas_flow, liquid: Liquid, process: Process,
 def hydro_point(vessel: Vessel, speed, gas_flow, liquid: Liquid,
                 process: Process) -> OperatingPoint:
     """The hydro layer's operating point for the broth and the process's gassed method."""
-    # far outside the gassed-power correlations (deeply flooded) a power can come out
-    # non-positive; the dispersion estimates then give NaN, which is what they should say
-    with np.errstate(invalid="ignore", divide="ignore"):
-        return operating_point(vessel, speed, gas_flow, liquid.temperature, liquid.density,
-                               liquid.viscosity, liquid.surface_tension,
-                               gassed_method=process.gassed_method)
+    return operating_point(vessel, speed, gas_flow, liquid.temperature, liquid.density,
+                           liquid.viscosity, liquid.surface_tension,
+                           gassed_method=process.gassed_method)
 
 
 def vessel_solubility(vessel: Vessel, liquid: Liquid) -> oxygen.OxygenSolubility:
