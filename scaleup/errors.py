@@ -70,12 +70,20 @@ class ImportRejected(InputError):
         self.problems = problems
         lines = [f"{source}: {len(problems)} problem(s); nothing was imported:" if source
                  else f"{len(problems)} problem(s); nothing was imported:"]
-        for p in problems:
+        for p in problems[:SHOWN_PROBLEMS]:
             where = f"row {p['row']}" if p.get("row") is not None else "file"
             col = f", column {p['column']!r}" if p.get("column") else ""
-            val = f", value {p['value']!r}" if p.get("value") not in (None, "") else ""
+            value = p.get("value")
+            if isinstance(value, str) and len(value) > 60:
+                value = value[:57] + "..."
+            val = f", value {value!r}" if value not in (None, "") else ""
             lines.append(f"  {where}{col}{val}: {p['reason']}")
+        if len(problems) > SHOWN_PROBLEMS:  # the rest are in .problems (and --json)
+            lines.append(f"  ... and {len(problems) - SHOWN_PROBLEMS} more; --json lists all")
         super().__init__("\n".join(lines))
+
+
+SHOWN_PROBLEMS = 50  # lines of an import report in a message
 
 
 def check_range(field: str, value: float, low: float | None, high: float | None,

@@ -129,6 +129,21 @@ def test_every_bad_row_is_listed_with_row_column_value(campaign, tmp_path):
     assert campaign.summary()["runs"] == 0
 
 
+def test_a_file_of_bad_rows_gets_a_bounded_report(campaign, tmp_path):
+    from scaleup.store.tables import MAX_PROBLEMS
+
+    path = write(tmp_path / "bad.csv", RUNS_HEADER + "\n"
+                 + "\n".join([GOOD_ROW.replace(",400,", ",fast,")] * 3000) + "\n")
+    with pytest.raises(ImportRejected) as info:
+        campaign.import_file("runs", path)
+    problems = info.value.problems
+    assert len(problems) == MAX_PROBLEMS + 1
+    assert "checking stopped after 1000 problems" in problems[0]["reason"]
+    assert [p["row"] for p in problems[1:]] == list(range(2, 2 + MAX_PROBLEMS))
+    text = str(info.value)
+    assert text.count("\n") < 60 and "and 951 more; --json lists all" in text
+
+
 def test_decimal_comma_files_are_read_when_asked(campaign, tmp_path):
     path = write(tmp_path / "eu.csv", RUNS_HEADER.replace(",", ";") + "\n"
                  "T-20;tap water;2026-02-03T09:00;400;10,5;30,25\n")

@@ -32,7 +32,15 @@ from scaleup.store.importers import (
     rejected_if,
     run_by_reference,
 )
-from scaleup.store.tables import Table, match_columns, number_cell, problem, read_table, reject
+from scaleup.store.tables import (
+    Table,
+    match_columns,
+    number_cell,
+    problem,
+    read_table,
+    reject,
+    too_many,
+)
 
 COLUMNS = {
     "time": ("time", "t", "timestamp", "date time", "datetime", "elapsed time", "clock"),
@@ -261,6 +269,8 @@ def read_curves(table: Table, *, run: str | None = None, gap_s: float | None = N
     current: Curve | None = None
     last_time = None
     for number, cells in table.numbered():
+        if too_many(reader.problems):
+            break
         run_key = run if run is not None else reader.cell(cells, "run")
         marker = reader.cell(cells, "curve") if has_marker else None
         if not run_key:

@@ -28,6 +28,7 @@ from scaleup.store.tables import (
     problem,
     read_table,
     sheet_names,
+    too_many,
 )
 
 DUPLICATE_CHOICES = ("refuse", "skip", "replace")
@@ -223,6 +224,8 @@ def plan_runs(campaign, table: Table, on_duplicate: str, decimal_comma: bool,
     for done, (number, cells) in enumerate(table.numbered(), start=1):
         if done % 200 == 0 or done == total:
             progress("checking runs", done, total)
+        if too_many(problems):
+            break
         values, _, bad = row_values(table, mapping, number, cells, problems, decimal_comma)
         try:
             clean = campaign._clean_run(values)
@@ -312,6 +315,8 @@ def import_fluxes(campaign, path: str | Path, *, sheet: str | None = None,
     stored = campaign.fluxes()
     plan, seen = [], []
     for number, cells in table.numbered():
+        if too_many(problems):
+            break
         values, extra, bad = row_values(table, mapping, number, cells, problems, decimal_comma)
         run_id = None
         if "run" in extra:

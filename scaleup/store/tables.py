@@ -33,12 +33,27 @@ _THOUSANDS_POINT = re.compile(r"[-+]?\d{1,3}(\.\d{3})+,\d+")
 _DECIMAL_COMMA = re.compile(r"[-+]?\d*,\d+([eE][-+]?\d+)?")
 _THOUSANDS_SPACE = re.compile(r"[-+]?\d{1,3}( \d{3})+(\.\d+)?")
 MAX_BYTES = 200 * 1024 * 1024
+# A file this wrong is the wrong file or the wrong layout: checking stops, the report says so
+MAX_PROBLEMS = 1000
 XLSX_SUFFIXES = (".xlsx", ".xlsm")
 
 
 def problem(row: int | None, column: str | None, value: object, reason: str) -> dict:
     """One entry of an import report: where (row, column), what (value) and why."""
     return {"row": row, "column": column, "value": value, "reason": reason}
+
+
+def too_many(problems: list[dict]) -> bool:
+    """True once ``problems`` holds MAX_PROBLEMS; adds the note that checking stopped."""
+    if len(problems) < MAX_PROBLEMS:
+        return False
+    if problems[-1]["reason"] != _STOPPED:
+        problems.append(problem(None, None, None, _STOPPED))
+    return True
+
+
+_STOPPED = (f"checking stopped after {MAX_PROBLEMS} problems: is this the right file and "
+            "layout? Fix these and import again")
 
 
 def reject(source: str, reason: str, row: int | None = None, column: str | None = None):

@@ -22,7 +22,7 @@ from scaleup.store.importers import (
     report_error,
     row_values,
 )
-from scaleup.store.tables import Table, match_columns, problem, read_table
+from scaleup.store.tables import Table, match_columns, problem, read_table, too_many
 
 VESSEL_SPECS = F.VESSEL + F.IMPELLER + F.SPARGER
 
@@ -47,6 +47,8 @@ def _group_vessels(table: Table, mapping: dict, problems: list, decimal_comma: b
                        else "impeller") for s in VESSEL_SPECS}
     groups: dict[str, dict] = {}
     for number, cells in table.numbered():
+        if too_many(problems):
+            break
         values, _, _ = row_values(table, mapping, number, cells, problems, decimal_comma)
         name = values.get("name", "")
         if not name:
