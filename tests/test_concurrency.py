@@ -162,3 +162,39 @@ def test_two_programs_and_the_command_line_edit_without_losing_anything(tmp_path
     assert all(r.get("own_conflicts", 0) == 0 for r in reports)  # different runs never clash
     assert attempted >= 20 and len(saved) >= 10  # the workers really overlapped
     assert sum(r["conflicts"] for r in reports) > 0  # ... and really competed for run 1
+
+
+def test_a_lock_held_too_long_is_a_clear_busy_message(tmp_path, monkeypatch):
+    """Another program keeps the write lock past the busy timeout: refused, nothing written."""
+    import sqlite3
+
+    from scaleup.errors import StoreError
+    from scaleup.store import db as store_db
+
+    from .cli_inprocess import invoke
+
+    path = tmp_path / "busy.db"
+    Campaign.create(path).close()
+    monkeypatch.setattr(store_db, "BUSY_TIMEOUT_MS", 300)
+    holder = sqlite3.connect(path, isolation_level=None)
+    holder.execute("BEGIN IMMEDIATE")
+    try:
+        with Campaign(path) as c:
+            started = time.perf_counter()
+            try:
+                c.add_medium({"name": "water"})
+            except StoreError as exc:
+                assert "busy" in str(exc) and "nothing was written" in str(exc)
+            else:
+                raise AssertionError("the write went through a held lock")
+            assert time.perf_counter() - started < 5
+            assert not c.conn.in_transaction
+        outcome = invoke(["--db", str(path), "medium", "add", "--name", "water"])
+        assert outcome.code == 2 and "busy" in outcome.err and not outcome.crashed
+    finally:
+        holder.execute("ROLLBACK")
+        holder.close()
+    with Campaign(path) as c:
+        assert c.media() == []
+        c.add_medium({"name": "water"})  # and the file works once the lock is gone
+        assert [m["name"] for m in c.media()] == ["water"]

@@ -160,7 +160,8 @@ def failure_message(exc: BaseException) -> str | None:
     None means the error is not the file's fault (a bug in a query, say) and should be
     reported as such rather than blamed on the user's file.
     """
-    if not isinstance(exc, sqlite3.DatabaseError):
+    # constraint failures, misuse and bad SQL are not the file's fault
+    if type(exc) not in (sqlite3.DatabaseError, sqlite3.OperationalError):
         return None
     text = str(exc).lower()
     if is_busy(exc):
