@@ -622,22 +622,6 @@ class Campaign:
 
         return export_runs(self, path, where, si=si)
 
-    def load_demo(self) -> dict:
-        """Fill an empty campaign with the invented demo campaign shipped with the package."""
-        from scaleup.store.demo import load_demo
-
-        return load_demo(self)
-
-    # ---- history -------------------------------------------------------------------------
-    def history(self, table: str | None = None, record_id: int | None = None,
-                limit: int = 50) -> list[dict]:
-        sql, params = "SELECT * FROM audit_log WHERE 1", []
-        if table:
-            sql += " AND table_name = ?"
-            params.append(table)
-        if record_id is not None:
-            sql += " AND record_id = ?"
-            params.append(record_id)
     def import_file(self, entity: str, path, **options) -> dict:
         """Import runs, vessels, fluxes or curves from CSV, XLSX or JSON: every row checked,
         then all or nothing (see :mod:`scaleup.store.importers`)."""
@@ -665,6 +649,22 @@ class Campaign:
 
         return write_template(entity, path, **options)
 
+    def load_demo(self) -> dict:
+        """Fill an empty campaign with the invented demo campaign shipped with the package."""
+        from scaleup.store.demo import load_demo
+
+        return load_demo(self)
+
+    # ---- history -------------------------------------------------------------------------
+    def history(self, table: str | None = None, record_id: int | None = None,
+                limit: int = 50) -> list[dict]:
+        sql, params = "SELECT * FROM audit_log WHERE 1", []
+        if table:
+            sql += " AND table_name = ?"
+            params.append(table)
+        if record_id is not None:
+            sql += " AND record_id = ?"
+            params.append(record_id)
         return self.rows(sql + " ORDER BY id DESC LIMIT ?", [*params, limit])
 
     def undo(self) -> dict:
