@@ -8,7 +8,6 @@ size, time stamp and permission bits.
 from __future__ import annotations
 
 import hashlib
-import os
 import sqlite3
 import stat
 from pathlib import Path
@@ -227,5 +226,19 @@ def test_a_file_is_left_readable_by_the_owner_only_as_it_was(folder):
     with Campaign(path) as c:
         c.add_medium({"name": "water"})
     assert stat.S_IMODE(path.stat().st_mode) == 0o600
-    assert not any(p.name.endswith(("-wal", "-shm")) for p in folder.iterdir()) or \
-        os.name != "posix"
+    assert not any(p.name.endswith(("-wal", "-shm")) for p in folder.iterdir())
+
+
+@pytest.mark.parametrize("where,message", [("missing/copy.db", "does not exist"),
+                                           ("ro/copy.db", "read-only"),
+                                           ("a-folder.db", "is a directory")])
+def test_backup_to_a_bad_place_is_refused_clearly(folder, where, message):
+    path = folder / "c.db"
+    Campaign.create(path).close()
+    (folder / "ro").mkdir()
+    (folder / "ro").chmod(0o555)
+    (folder / "a-folder.db").mkdir()
+    before = snapshot(folder)
+    outcome = invoke(["--db", str(path), "backup", str(folder / where)])
+    assert outcome.code == 2 and message in outcome.err and not outcome.crashed, outcome
+    assert snapshot(folder) == before

@@ -247,6 +247,13 @@ def backup(conn: sqlite3.Connection, target: str | os.PathLike) -> Path:
     interrupted never leaves a half-written file under the name asked for.
     """
     target = Path(target)
+    folder = target.parent if str(target.parent) else Path(".")
+    if not folder.is_dir():
+        raise InputError(f"the folder {folder} does not exist", "backup", str(target))
+    if not _writable(folder):
+        raise InputError(f"the folder {folder} is read-only", "backup", str(target))
+    if target.is_dir():
+        raise InputError(f"{target} is a folder; give a file name", "backup", str(target))
     partial = target.with_name(target.name + ".part")
     partial.unlink(missing_ok=True)
     try:
