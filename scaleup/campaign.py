@@ -676,6 +676,7 @@ class Campaign:
             raise InputError("there is nothing to undo")
         table, record_id, action = last["table_name"], last["record_id"], last["action"]
         with self.transaction():
+            records.unchanged_since(self.conn, last)  # never undo over someone else's edit
             if action == "update":
                 old = json.loads(last["old_json"])
                 editable = {k: v for k, v in old.items()

@@ -198,3 +198,27 @@ def test_a_lock_held_too_long_is_a_clear_busy_message(tmp_path, monkeypatch):
         assert c.media() == []
         c.add_medium({"name": "water"})  # and the file works once the lock is gone
         assert [m["name"] for m in c.media()] == ["water"]
+
+
+def test_undo_never_overwrites_someone_elses_later_edit(tmp_path):
+    """A edits, B edits the same run, A undoes: refused, B's value stays."""
+    from scaleup.errors import ConflictError
+
+    path = tmp_path / "undo.db"
+    with Campaign.create(path) as c:
+        c.add_vessel(P20, DISC)
+        c.add_medium({"name": "tap water"})
+        run_id = add_run(c, notes="as measured")
+    with Campaign(path, actor="anna") as anna, Campaign(path, actor="ben") as ben:
+        anna.edit_run(run_id, {"notes": "anna's note"})
+        ben.edit_run(run_id, {"notes": "ben's note"},
+                     expected_version=ben.run(run_id)["row_version"])
+        try:
+            anna.undo()
+        except ConflictError as exc:
+            assert "ben" in str(exc) and "nothing was written" in str(exc)
+        else:
+            raise AssertionError("undo overwrote a later edit by someone else")
+        assert anna.run(run_id)["notes"] == "ben's note"
+        assert ben.undo()["undid"] == "update"  # ben's own undo is his to make
+        assert anna.run(run_id)["notes"] == "anna's note"

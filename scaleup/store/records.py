@@ -230,6 +230,23 @@ def _too_large(values: dict) -> InputError:
     return InputError("is too large to store (at most 9223372036854775807)", big, values.get(big))
 
 
+def unchanged_since(conn: sqlite3.Connection, change: dict) -> None:
+    """Refuse to undo ``change`` (an audit row) if its record was changed after it by anyone.
+
+    Undo writes the old values back; over a later edit from another program that would be a
+    lost update, so it is refused with who changed what, and nothing is written.
+    """
+    newest = rows(conn, "SELECT id, actor, at, action FROM audit_log WHERE table_name = ? AND "
+                        "record_id = ? ORDER BY id DESC LIMIT 1",
+                  (change["table_name"], change["record_id"]))
+    if newest and newest[0]["id"] != change["id"]:
+        later = newest[0]
+        raise ConflictError(
+            f"{change['table_name']} {change['record_id']} was changed after your "
+            f"{change['action']} ({later['action']} by {later['actor'] or 'someone'} at "
+            f"{later['at']}); undoing would overwrite that change, so nothing was written")
+
+
 _CHECK = re.compile(r"CHECK constraint failed: (.*)$")
 
 
