@@ -233,6 +233,36 @@ class Campaign:
         row = self._vessel_row(key, include_deleted=True)
         return records.restore(self.conn, "vessel", row["id"], actor=self.actor)
 
+    def set_impellers(self, key: str | int, impellers: list[dict], *,
+                      expected_version: int | None = None) -> dict:
+        """Replace the vessel's impellers (lowest first; an empty list leaves none); all or
+        nothing. Returns the vessel as :meth:`vessel` does."""
+        row = self._vessel_row(key)
+        clean, problems = [], []
+        for i, imp in enumerate(impellers, start=1):
+            try:
+                clean.append(validate(F.IMPELLER, imp))
+            except InputError as exc:  # "clearance: ..." -> "impeller 2 clearance: ..."
+                problems += [f"impeller {i} {p.removeprefix('impeller ')}"
+                             for p in str(exc).split("; ")]
+        if problems:
+            raise InputError("; ".join(problems))
+        self._check_impellers(row, clean)
+        records.replace_children(
+            self.conn, "impeller", row["id"],
+            [{**imp, "position": i} for i, imp in enumerate(clean, start=1)],
+            expected_version=expected_version, actor=self.actor)
+        return self.vessel(row["id"])
+
+    def set_sparger(self, key: str | int, sparger: dict | None, *,
+                    expected_version: int | None = None) -> dict:
+        """Replace the vessel's sparger (None removes it). Returns the vessel."""
+        row = self._vessel_row(key)
+        clean = [validate(F.SPARGER, sparger)] if sparger else []
+        records.replace_children(self.conn, "sparger", row["id"], clean,
+                                 expected_version=expected_version, actor=self.actor)
+        return self.vessel(row["id"])
+
     def vessel_geometry(self, key: str | int):
         """The stored vessel as a hydro :class:`~scaleup.hydro.geometry.Vessel`."""
         from scaleup.conditions import vessel_from_row
@@ -242,15 +272,8 @@ class Campaign:
     # ---- media ---------------------------------------------------------------------------
     def add_medium(self, values: dict[str, Any], salts: dict[str, Any] | None = None) -> int:
         """Add a medium; ``salts`` maps a salt (e.g. NaCl) to its concentration ("0.5 mol/L")."""
-        from scaleup import units
-
         clean = validate(F.MEDIUM, values)
-        clean_salts = {}
-        for salt, conc in (salts or {}).items():
-            value = units.parse(conc, "concentration", f"salt {salt}")
-            if value < 0:
-                raise InputError(f'"{conc}" is negative', f"salt {salt}", conc)
-            clean_salts[salt.strip()] = value
+        clean_salts = self._clean_salts(salts or {})
         with self.transaction():
             medium_id = records.insert(self.conn, "medium", clean, actor=self.actor)
             for salt, value in clean_salts.items():
@@ -258,6 +281,36 @@ class Campaign:
                                                           "concentration_mol_m3": value},
                                actor=self.actor)
         return medium_id
+
+    @staticmethod
+    def _clean_salts(salts: dict[str, Any]) -> dict[str, float]:
+        """{salt: concentration as typed} -> {salt: mol/m3}, every problem named at once."""
+        from scaleup import units
+
+        clean, problems = {}, []
+        for salt, conc in salts.items():
+            try:
+                value = units.parse(conc, "concentration", f"salt {salt}")
+                if value < 0:
+                    raise InputError(f'"{conc}" is negative', f"salt {salt}", conc)
+                clean[salt.strip()] = value
+            except InputError as exc:
+                problems.append(str(exc))
+        if problems:
+            raise InputError("; ".join(problems))
+        return clean
+
+    def set_salts(self, key: str | int, salts: dict[str, Any], *,
+                  expected_version: int | None = None) -> dict:
+        """Replace the medium's dissolved salts ({"NaCl": "0.5 mol/L"}; {} leaves none).
+        Returns the medium as :meth:`medium` does."""
+        row = self._medium_row(key)
+        clean = self._clean_salts(salts)
+        records.replace_children(
+            self.conn, "medium_salt", row["id"],
+            [{"salt": salt, "concentration_mol_m3": value} for salt, value in clean.items()],
+            expected_version=expected_version, actor=self.actor)
+        return self.medium(row["id"])
 
     def _medium_row(self, key: str | int, *, include_deleted: bool = False) -> dict:
         column = "id" if isinstance(key, int) or str(key).isdigit() else "name"
@@ -679,10 +732,20 @@ class Campaign:
             records.unchanged_since(self.conn, last)  # never undo over someone else's edit
             if action == "update":
                 old = json.loads(last["old_json"])
+                replaced = [t for t, (parent, _) in records.CHILDREN.items()
+                            if parent == table and t in old]
                 editable = {k: v for k, v in old.items()
                             if k not in ("id", "row_version", "created_at", "updated_at",
-                                         "deleted_at")}
-                records.update(self.conn, table, record_id, editable, actor=self.actor)
+                                         "deleted_at", *records.CHILDREN)}
+                if replaced:  # impellers, sparger or salts were replaced: put the old back
+                    child = replaced[0]
+                    key = records.CHILDREN[child][1]
+                    records.replace_children(
+                        self.conn, child, record_id,
+                        [{k: v for k, v in r.items() if k not in ("id", key)}
+                         for r in old[child]], actor=self.actor)
+                else:
+                    records.update(self.conn, table, record_id, editable, actor=self.actor)
             elif action == "delete":
                 records.restore(self.conn, table, record_id, actor=self.actor)
             elif action == "restore":

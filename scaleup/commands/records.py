@@ -162,19 +162,50 @@ def vessel_show(ctx, vessel, as_json):
 @vessel_group.command("edit")
 @click.argument("vessel")
 @field_options(F.VESSEL)
+@click.option("--impeller", "impellers", multiple=True, metavar="TYPE:D:C[:BLADES[:NP]]",
+              help="Replace the impellers with these, lowest first; repeat for more.")
+@click.option("--no-impellers", is_flag=True, help="Remove every impeller.")
+@click.option("--sparger", default=None, metavar="TYPE:DIAMETER:HEIGHT",
+              help="Replace the sparger with this one.")
+@click.option("--no-sparger", is_flag=True, help="Remove the sparger.")
 @click.option("--expected-version", type=int, default=None,
               help="Refuse the edit if the record's version is no longer this one.")
 @json_option
 @click.pass_context
-def vessel_edit(ctx, vessel, expected_version, as_json, **kwargs):
-    """Edit fields of a vessel. Example: scaleup vessel edit V-300 --head-pressure "0.3 barg\""""
+def vessel_edit(ctx, vessel, impellers, no_impellers, sparger, no_sparger, expected_version,
+                as_json, **kwargs):
+    """Edit fields, impellers or sparger of a vessel; all or nothing.
+
+    \b
+    Examples:
+      scaleup vessel edit V-300 --head-pressure "0.3 barg"
+      scaleup vessel edit V-300 --impeller "disc-turbine:0.2 m:0.2 m" \\
+          --impeller "pitched-blade-4:0.2 m:0.6 m" --sparger "ring:0.15 m:0.05 m"
+    """
     changes = given(F.VESSEL, kwargs)
-    if not changes:
-        raise click.UsageError("give at least one field to change, e.g. --liquid-height '1 m'")
+    if (impellers and no_impellers) or (sparger and no_sparger):
+        raise click.UsageError("give --impeller or --no-impellers (--sparger or --no-sparger), "
+                               "not both")
+    new_impellers = [_impeller(i) for i in impellers] if impellers or no_impellers else None
+    new_sparger = (_sparger(sparger) if sparger else None) if sparger or no_sparger else False
+    if not changes and new_impellers is None and new_sparger is False:
+        raise click.UsageError("give at least one field to change, e.g. --liquid-height '1 m'"
+                               " or --impeller 'disc-turbine:0.2 m:0.2 m'")
     with _campaign(ctx) as c:
-        edited = c.edit_vessel(vessel, changes, expected_version=expected_version)
         # by id: a new name that looks like a number ("0") must not be read as an id
-        _show_vessel(c.vessel(edited["id"]), as_json)
+        key = c.vessel(vessel)["id"]
+        with c.transaction():
+            # the expected version guards the first write; the later ones see the raised one
+            version = expected_version
+            if changes:
+                c.edit_vessel(key, changes, expected_version=version)
+                version = None
+            if new_impellers is not None:
+                c.set_impellers(key, new_impellers, expected_version=version)
+                version = None
+            if new_sparger is not False:
+                c.set_sparger(key, new_sparger, expected_version=version)
+        _show_vessel(c.vessel(key), as_json)
 
 
 @vessel_group.command("delete")
@@ -276,18 +307,38 @@ def medium_show(ctx, medium, as_json):
 @medium_group.command("edit")
 @click.argument("medium")
 @field_options(F.MEDIUM)
+@click.option("--salt", "salts", multiple=True, metavar="SALT=CONC",
+              help='Replace the salts with these, e.g. "NaCl=0.5 mol/L"; repeatable.')
+@click.option("--no-salts", is_flag=True, help="Remove every salt.")
 @click.option("--expected-version", type=int, default=None,
               help="Refuse the edit if the record's version is no longer this one.")
 @json_option
 @click.pass_context
-def medium_edit(ctx, medium, expected_version, as_json, **kwargs):
-    """Edit a medium. Example: scaleup medium edit water --viscosity "1.1 mPa s\""""
+def medium_edit(ctx, medium, salts, no_salts, expected_version, as_json, **kwargs):
+    """Edit a medium or replace its salts; all or nothing.
+
+    \b
+    Examples:
+      scaleup medium edit water --viscosity "1.1 mPa s"
+      scaleup medium edit brine --salt "NaCl=0.5 mol/L" --salt "Na2SO4=20 mmol/L"
+    """
     changes = given(F.MEDIUM, kwargs)
-    if not changes:
-        raise click.UsageError("give at least one field to change, e.g. --viscosity '2 mPa s'")
+    if salts and no_salts:
+        raise click.UsageError("give --salt or --no-salts, not both")
+    if not changes and not salts and not no_salts:
+        raise click.UsageError("give at least one field to change, e.g. --viscosity '2 mPa s'"
+                               " or --salt 'NaCl=0.5 mol/L'")
+    new_salts = _salts(salts)
     with _campaign(ctx) as c:
-        edited = c.edit_medium(medium, changes, expected_version=expected_version)
-        _show_medium(c.medium(edited["id"]), as_json)
+        key = c.medium(medium)["id"]
+        with c.transaction():
+            version = expected_version
+            if changes:
+                c.edit_medium(key, changes, expected_version=version)
+                version = None
+            if salts or no_salts:
+                c.set_salts(key, new_salts, expected_version=version)
+        _show_medium(c.medium(key), as_json)
 
 
 @medium_group.command("delete")

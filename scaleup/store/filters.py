@@ -26,7 +26,8 @@ from scaleup.errors import InputError
 COLUMNS: dict[str, str | None] = {
     # column -> units kind of its SI value (None: text or plain number)
     "id": None, "ref": None, "vessel": None, "medium": None, "coalescence": None, "run_at": None,
-    "speed_rps": "speed", "gas_flow_mol_s": "gas_flow", "o2_fraction_in": "fraction",
+    "speed_rps": "speed", "gas_flow_mol_s": "gas_flow", "gas_flow_vvm": None,
+    "o2_fraction_in": "fraction",
     "temperature_k": "temperature", "head_pressure_pa": "pressure",
     "power_measured_w": "power", "kla_per_s": "kla", "kla_stderr_per_s": "kla",
     "kla_method": None, "gas_holdup": "fraction", "tank_diameter_m": "length",
@@ -34,7 +35,7 @@ COLUMNS: dict[str, str | None] = {
     "n_curves": None,
 }
 ALIASES = {
-    "speed": "speed_rps", "n": "speed_rps", "gas_flow": "gas_flow_mol_s",
+    "speed": "speed_rps", "n": "speed_rps", "gas_flow": "gas_flow_mol_s", "vvm": "gas_flow_vvm",
     "temperature": "temperature_k", "temp": "temperature_k", "kla": "kla_per_s",
     "volume": "working_volume_m3", "date": "run_at", "tank_diameter": "tank_diameter_m",
     "pressure": "head_pressure_pa", "method": "kla_method", "holdup": "gas_holdup",

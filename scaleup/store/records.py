@@ -19,6 +19,10 @@ from scaleup.store import db
 
 # tables whose rows are soft-deleted and versioned
 VERSIONED = ("vessel", "medium", "run", "curve", "offgas", "flux", "fit", "study")
+# rows that belong to a versioned record and are replaced with it, never soft-deleted:
+# table -> (parent table, column naming the parent)
+CHILDREN = {"impeller": ("vessel", "vessel_id"), "sparger": ("vessel", "vessel_id"),
+            "medium_salt": ("medium", "medium_id")}
 _IDENTIFIER = re.compile(r"^[a-z_][a-z0-9_]*$")
 _savepoint_counter = 0
 
@@ -148,7 +152,7 @@ def insert(conn: sqlite3.Connection, table: str, values: dict[str, Any], *,
         except OverflowError:
             raise _too_large(values) from None
         record_id = cur.lastrowid
-        if table in VERSIONED or table in ("impeller", "sparger", "medium_salt"):
+        if table in VERSIONED or table in CHILDREN:
             _audit(conn, table, record_id, action, None, get(conn, table, record_id,
                                                               include_deleted=True), actor)
     return record_id
@@ -214,13 +218,51 @@ def restore(conn: sqlite3.Connection, table: str, record_id: int, *, actor: str 
     return new
 
 
+def replace_children(conn: sqlite3.Connection, table: str, parent_id: int,
+                     new_rows: list[dict[str, Any]], *, expected_version: int | None = None,
+                     actor: str = "") -> dict:
+    """Replace every ``table`` row of one parent (the impellers of a vessel, say) at once.
+
+    The old rows are deleted and the new ones inserted, each audited; then the parent's row
+    version is raised and audited as an update whose old and new records carry the child rows
+    under the table's name, so another editor holding the old version is refused and undo can
+    put the old rows back. Returns the parent as it is now.
+    """
+    parent_table, key = CHILDREN[table]
+    with transaction(conn):
+        parent = get(conn, parent_table, parent_id)
+        if expected_version is not None and parent["row_version"] != expected_version:
+            raise ConflictError(conflict_message(parent_table, parent_id, parent,
+                                                 {table: new_rows}, expected_version))
+        old_rows = rows(conn, f"SELECT * FROM {_name(table)} WHERE {key} = ? ORDER BY id",
+                        (parent_id,))
+        for old in old_rows:
+            conn.execute(f"DELETE FROM {table} WHERE id = ?", (old["id"],))
+            _audit(conn, table, old["id"], "delete", old, None, actor)
+        for values in new_rows:
+            insert(conn, table, {**values, key: parent_id}, actor=actor)
+        stored = rows(conn, f"SELECT * FROM {table} WHERE {key} = ? ORDER BY id", (parent_id,))
+        extra = (", updated_at = strftime('%Y-%m-%dT%H:%M:%fZ', 'now')"
+                 if "updated_at" in parent else "")
+        conn.execute(f"UPDATE {parent_table} SET row_version = row_version + 1{extra} "
+                     "WHERE id = ?", (parent_id,))
+        new = get(conn, parent_table, parent_id)
+        _audit(conn, parent_table, parent_id, "update", {**parent, table: old_rows},
+               {**new, table: stored}, actor)
+    return new
+
+
 def last_change(conn: sqlite3.Connection, actor: str | None = None) -> dict | None:
-    """The newest audited change (for undo)."""
-    sql = "SELECT * FROM audit_log"
-    params: tuple = ()
+    """The newest audited change of a versioned record (for undo).
+
+    Rows of child tables are written in the same transaction as their parent's insert or
+    version change, so the parent's entry stands for the whole change.
+    """
+    sql = f"SELECT * FROM audit_log WHERE table_name IN ({', '.join('?' for _ in VERSIONED)})"
+    params: tuple = VERSIONED
     if actor is not None:
-        sql += " WHERE actor = ?"
-        params = (actor,)
+        sql += " AND actor = ?"
+        params = (*VERSIONED, actor)
     found = rows(conn, sql + " ORDER BY id DESC LIMIT 1", params)
     return found[0] if found else None
 

@@ -20,7 +20,9 @@ from scaleup.tui.screens.base import WorkScreen
 from scaleup.tui.widgets.form import FormField, RecordForm
 
 SALTS = F.Field("salts", "salts", "text",
-                help="Dissolved salts with concentrations, e.g. NaCl 0.5 mol/L, Na2SO4 20 g/L")
+                help="Dissolved salts with concentrations, e.g. NaCl 0.5 mol/L, Na2SO4 20 mmol/L")
+SALT_LINE = F.Field("salt", "salt", "text",
+                    help="One dissolved salt and its concentration, e.g. NaCl 0.5 mol/L")
 
 
 def read_salts(text: str) -> dict[str, str]:
@@ -35,6 +37,15 @@ def read_salts(text: str) -> dict[str, str]:
                              '"NaCl 0.5 mol/L"', "salts", part)
         salts[name] = amount.strip()
     return salts
+
+
+def check_salt_line(text: str) -> None:
+    """Refuse a salt line whose concentration is not a molar one (shown under the line)."""
+    from scaleup import units
+
+    for salt, amount in read_salts(text).items():
+        if units.parse(amount, "concentration", f"salt {salt}") < 0:
+            raise InputError(f'"{amount}" is negative', f"salt {salt}", amount)
 
 
 def facts(m: dict) -> Table:
@@ -64,6 +75,7 @@ class MediaScreen(WorkScreen):
     BINDINGS = [
         Binding("a", "add", "add medium", id="add"),
         Binding("e", "edit", "edit", id="edit"),
+        Binding("s", "salts", "salts", id="salts"),
         Binding("x,delete", "delete", "delete", id="delete"),
         Binding("u", "app.undo", "undo", id="undo-here"),
         Binding("r", "runs", "its runs", id="runs"),
@@ -153,7 +165,33 @@ class MediaScreen(WorkScreen):
             return changes.get("name", m["name"])
 
         self.app.push_screen(RecordForm(f"edit medium {m['name']}", lines, save,
-                                        intro="Salts are kept as they are."), self._saved)
+                                        intro="s edits the salts."), self._saved)
+
+    def action_salts(self) -> None:
+        m = self.current()
+        if m is None:
+            return
+        stored = [f"{salt} {fmt.typed(conc, 'concentration', 'mol/L')}"
+                  for salt, conc in (m.get("salts") or {}).items()]
+        texts = [*stored, *[""] * max(2, 4 - len(stored))]
+        lines = [FormField(SALT_LINE, text, name=f"salt {i}", check=check_salt_line)
+                 for i, text in enumerate(texts, start=1)]
+
+        def save(form: RecordForm) -> str:
+            salts, line_of = {}, {}
+            for key, text in form.values().items():  # each line was read when it was left
+                for salt, amount in read_salts(text).items():
+                    if salt in salts:
+                        raise InputError(f"{salt} is on {line_of[salt]} already", key)
+                    salts[salt], line_of[salt] = amount, key
+            with self.store_lock:
+                self.campaign.set_salts(m["name"], salts, expected_version=m["row_version"])
+            return m["name"]
+
+        intro = ("One salt a line with its molar concentration: NaCl 0.5 mol/L, "
+                 "Na2SO4 20 mmol/L. Empty a line to remove that salt.")
+        self.app.push_screen(RecordForm(f"salts of {m['name']}", lines, save, intro=intro),
+                             self._saved)
 
     def _saved(self, name: str | None) -> None:
         if name:

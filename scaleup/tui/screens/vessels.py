@@ -23,6 +23,18 @@ from scaleup.tui.widgets.sketch import legend, sketch
 SECOND = "2nd "  # prefix of the optional second impeller's fields in the add form
 
 
+def impeller_key(position: int, spec: F.Field) -> str:
+    """The form key of one impeller field, named as the service layer names its problems
+    ("impeller 2 clearance"), so each problem shows under its own field."""
+    return f"impeller {position} {spec.label.removeprefix('impeller ')}"
+
+
+def typed_part(vessel: dict, spec: F.Field, value: object) -> str:
+    """A stored value of an impeller or sparger as typed: lengths in mm in a pilot vessel."""
+    small = spec.kind == "length" and vessel["tank_diameter_m"] < 2
+    return fmt.typed(value, spec.kind, "mm" if small else None)
+
+
 def _ratio(a: float | None, b: float | None) -> str:
     return fmt.lab(a / b, "fraction", digits=3) if a and b else "-"
 
@@ -80,6 +92,8 @@ class VesselsScreen(WorkScreen):
     BINDINGS = [
         Binding("a", "add", "add vessel", id="add"),
         Binding("e", "edit", "edit", id="edit"),
+        Binding("i", "impellers", "impellers", id="impellers"),
+        Binding("s", "sparger", "sparger", id="sparger"),
         Binding("x,delete", "delete", "delete", id="delete"),
         Binding("u", "app.undo", "undo", id="undo-here"),
         Binding("r", "runs", "its runs", id="runs"),
@@ -198,9 +212,61 @@ class VesselsScreen(WorkScreen):
                                               expected_version=v["row_version"])
             return changes.get("name", v["name"])
 
-        intro = ("Geometry of the shell; impellers and sparger are kept as they are. "
+        intro = ("Geometry of the shell (i edits the impellers, s the sparger). "
                  "Change the height and the volume follows (or the other way round).")
         self.app.push_screen(RecordForm(f"edit vessel {v['name']}", lines, save, intro=intro),
+                             self._saved)
+
+    def action_impellers(self) -> None:
+        v = self.current()
+        if v is None:
+            return
+        stored = v.get("impellers") or []
+        lines = []
+        for i, imp in enumerate([*stored, {}, {}][:max(len(stored) + 1, 2)], start=1):
+            for spec in F.IMPELLER:
+                lines.append(FormField(spec, typed_part(v, spec, imp.get(spec.column)),
+                                       "optional" if not imp and spec.required else "",
+                                       name=impeller_key(i, spec)))
+
+        def save(form: RecordForm) -> str:
+            values = form.values()
+            impellers = []
+            for i in range(1, len(lines) // len(F.IMPELLER) + 1):
+                typed = {spec.label: values[impeller_key(i, spec)] for spec in F.IMPELLER}
+                if any(typed.values()):  # an impeller left wholly empty is not there
+                    impellers.append({k: t for k, t in typed.items() if t})
+            with self.store_lock:
+                self.campaign.set_impellers(v["name"], impellers,
+                                            expected_version=v["row_version"])
+            return v["name"]
+
+        from scaleup.hydro.impellers import impeller_types
+
+        intro = ("Lowest impeller first; C is its height above the bottom. Empty every field "
+                 "of one to remove it, fill the spare one to add. Types: "
+                 + ", ".join(impeller_types()) + ".")
+        self.app.push_screen(RecordForm(f"impellers of {v['name']}", lines, save,
+                                        intro=intro), self._saved)
+
+    def action_sparger(self) -> None:
+        v = self.current()
+        if v is None:
+            return
+        sparger = v.get("sparger") or {}
+        lines = [FormField(spec, typed_part(v, spec, sparger.get(spec.column)))
+                 for spec in F.SPARGER]
+
+        def save(form: RecordForm) -> str:
+            values = {k: t for k, t in form.values().items() if t}
+            with self.store_lock:
+                self.campaign.set_sparger(v["name"], values or None,
+                                          expected_version=v["row_version"])
+            return v["name"]
+
+        intro = ("Height is above the vessel bottom. Empty every field to remove the "
+                 "sparger.")
+        self.app.push_screen(RecordForm(f"sparger of {v['name']}", lines, save, intro=intro),
                              self._saved)
 
     def _saved(self, name: str | None) -> None:

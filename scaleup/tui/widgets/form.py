@@ -33,6 +33,8 @@ class FormField:
     text: str = ""
     empty_note: str = ""
     name: str = ""  # key in the values handed to ``save``; the spec's label by default
+    # reads the typed text (raising InputError) where the spec alone cannot, e.g. "NaCl 0.5 mol/L"
+    check: Callable[[str], object] | None = None
 
     @property
     def key(self) -> str:
@@ -156,7 +158,10 @@ class RecordForm(ModalScreen[Any]):
         problem = None
         if text:
             try:
-                F.read(line.spec, text, **self.read_context(self.values()))
+                if line.check is not None:
+                    line.check(text)
+                else:
+                    F.read(line.spec, text, **self.read_context(self.values()))
             except InputError as exc:
                 problem = str(exc).removeprefix(f"{line.spec.label}: ")
             except ValueError as exc:  # a gas flow in vvm before the vessel is known

@@ -43,8 +43,7 @@ COLUMNS: tuple[Column, ...] = (
     Column("medium", "medium\n", lambda r: r.get("medium") or "", numeric=False),
     Column("speed_rps", "N\nrpm", _q("speed_rps", "speed")),
     Column("gas_flow_mol_s", "Qg\nNL/min", _q("gas_flow_mol_s", "gas_flow")),
-    Column("working_volume_m3", "Qg/V\nvvm",
-           lambda r: fmt.vvm(r.get("gas_flow_mol_s"), r.get("working_volume_m3"))),
+    Column("gas_flow_vvm", "Qg/V\nvvm", _q("gas_flow_vvm", "fraction", digits=3)),
     Column("temperature_k", "T\ndegC", _q("temperature_k", "temperature", digits=3)),
     Column("kla_per_s", "kLa\n1/h", _q("kla_per_s", "kla")),
     Column("kla_stderr_per_s", "±kLa\n1/h", _q("kla_stderr_per_s", "kla", digits=2)),
@@ -55,8 +54,6 @@ COLUMNS: tuple[Column, ...] = (
     Column("ref", "ref\n", lambda r: r.get("ref") or "", numeric=False),
 )
 BY_KEY = {c.key: c for c in COLUMNS}
-# "vvm" has no column of its own: it sorts as gas flow over volume would, which the view
-# cannot do, so it sorts by volume and says so in the sort picker.
 
 
 def _label(title: str) -> str:
@@ -65,7 +62,6 @@ def _label(title: str) -> str:
 
 
 SORT_LABELS = {c.key: _label(c.title) for c in COLUMNS}
-SORT_LABELS["working_volume_m3"] = "working volume (sorts the vvm column by volume)"
 
 
 class RunTable(DataTable):
