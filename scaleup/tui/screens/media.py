@@ -22,7 +22,7 @@ from scaleup.tui.widgets.form import FormField, RecordForm
 SALTS = F.Field("salts", "salts", "text",
                 help="Dissolved salts with concentrations, e.g. NaCl 0.5 mol/L, Na2SO4 20 mmol/L")
 SALT_LINE = F.Field("salt", "salt", "text",
-                    help="One dissolved salt and its concentration, e.g. NaCl 0.5 mol/L")
+                    help="e.g. KCl 0.1 mol/L")
 
 
 def read_salts(text: str) -> dict[str, str]:

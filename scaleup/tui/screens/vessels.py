@@ -17,10 +17,15 @@ from scaleup.errors import InputError
 from scaleup.tui import format as fmt
 from scaleup.tui.messages import ChangeUndone
 from scaleup.tui.screens.base import WorkScreen
-from scaleup.tui.widgets.form import FormField, RecordForm
+from scaleup.tui.widgets.form import FormField, RecordForm, TableForm
 from scaleup.tui.widgets.sketch import legend, sketch
 
 SECOND = "2nd "  # prefix of the optional second impeller's fields in the add form
+
+
+# column headers of the impeller table
+HEADERS = {"impeller_type": "type", "impeller_diameter_m": "D", "clearance_m": "C",
+           "blade_count": "blades", "blade_width_m": "blade w", "power_number_measured": "Np"}
 
 
 def impeller_key(position: int, spec: F.Field) -> str:
@@ -222,17 +227,21 @@ class VesselsScreen(WorkScreen):
         if v is None:
             return
         stored = v.get("impellers") or []
-        lines = []
-        for i, imp in enumerate([*stored, {}, {}][:max(len(stored) + 1, 2)], start=1):
-            for spec in F.IMPELLER:
-                lines.append(FormField(spec, typed_part(v, spec, imp.get(spec.column)),
-                                       "optional" if not imp and spec.required else "",
-                                       name=impeller_key(i, spec)))
+        unit = "mm" if v["tank_diameter_m"] < 2 else "m"
+        headers = [f"{HEADERS[spec.column]} {unit}" if spec.kind == "length"
+                   else HEADERS[spec.column] for spec in F.IMPELLER]
+        rows = []
+        for i, imp in enumerate([*stored, {}], start=1):  # and a spare row to add one
+            spare = "add one" if not imp else ""
+            rows.append((str(i), [FormField(spec, typed_part(v, spec, imp.get(spec.column)),
+                                            spare if spec.column == "impeller_type" else "",
+                                            name=impeller_key(i, spec))
+                                  for spec in F.IMPELLER]))
 
         def save(form: RecordForm) -> str:
             values = form.values()
             impellers = []
-            for i in range(1, len(lines) // len(F.IMPELLER) + 1):
+            for i in range(1, len(rows) + 1):
                 typed = {spec.label: values[impeller_key(i, spec)] for spec in F.IMPELLER}
                 if any(typed.values()):  # an impeller left wholly empty is not there
                     impellers.append({k: t for k, t in typed.items() if t})
@@ -243,11 +252,11 @@ class VesselsScreen(WorkScreen):
 
         from scaleup.hydro.impellers import impeller_types
 
-        intro = ("Lowest impeller first; C is its height above the bottom. Empty every field "
-                 "of one to remove it, fill the spare one to add. Types: "
-                 + ", ".join(impeller_types()) + ".")
-        self.app.push_screen(RecordForm(f"impellers of {v['name']}", lines, save,
-                                        intro=intro), self._saved)
+        intro = ("Lowest impeller first; C is its height above the bottom; Np a measured "
+                 "power number (else the catalogue's). Empty a row to remove that impeller, "
+                 "fill the spare row to add one. Types: " + ", ".join(impeller_types()) + ".")
+        self.app.push_screen(TableForm(f"impellers of {v['name']}", headers, rows, save,
+                                       intro=intro), self._saved)
 
     def action_sparger(self) -> None:
         v = self.current()

@@ -219,3 +219,45 @@ class RecordForm(ModalScreen[Any]):
 
     def action_cancel(self) -> None:
         self.dismiss(None)
+
+
+class TableForm(RecordForm):
+    """A form of records that repeat (the impellers of a vessel): one row per record, one
+    column per field, what each column holds and its unit in the header. Reading, checking
+    and saving are the :class:`RecordForm`'s; a problem is shown under its row, named."""
+
+    def __init__(self, title: str, headers: Sequence[str],
+                 rows: Sequence[tuple[str, Sequence[FormField]]],
+                 save: Callable[[RecordForm], Any], *, intro: str = ""):
+        self.headers = list(headers)
+        self.rows = [(label, list(lines)) for label, lines in rows]
+        super().__init__(title, [line for _, lines in self.rows for line in lines], save,
+                         intro=intro)
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="form-box"):
+            yield Label(Text(self.form_title, style="bold"), id="form-title")
+            if self.intro:
+                yield Static(Text(self.intro), id="form-intro")
+            with VerticalScroll(id="form-fields"):
+                with Horizontal(classes="table-head"):
+                    yield Label("", classes="table-row-label")
+                    for n, header in enumerate(self.headers):
+                        yield Label(Text(header, style="bold"), classes=f"table-cell col-{n}")
+                for label, lines in self.rows:
+                    with Horizontal(classes="table-row"):
+                        yield Label(Text(label), classes="table-row-label")
+                        for n, line in enumerate(lines):
+                            yield Input(line.text, placeholder=line.empty_note,
+                                        id=f"in-{_dom_id(line.key)}", compact=True,
+                                        select_on_focus=False, classes=f"table-cell col-{n}")
+                    for line in lines:
+                        yield Static("", id=f"err-{_dom_id(line.key)}",
+                                     classes="form-error table-error", markup=False)
+            yield Static("", id="form-general", classes="form-error", markup=False)
+            yield Static("", id="form-hint", markup=False)
+            yield Static(Text("ctrl+s save · esc cancel · tab/↓ next field", style="dim"),
+                         id="form-keys")
+
+    def _show(self, dom: str, problem: str | None) -> None:
+        super()._show(dom, f"{self.by_dom[dom].key}: {problem}" if problem else None)
