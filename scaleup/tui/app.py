@@ -100,6 +100,8 @@ class WorkbenchApp(App):
         Binding("question_mark,f1", "app.keys", "keys", id="keys"),
         Binding("ctrl+z", "app.undo", "undo", show=False, id="undo"),
         Binding("ctrl+q", "app.quit", "quit", id="quit"),
+        # digits typed in a field go into the field; esc leaves it so 1-7 switch screens again
+        Binding("escape", "app.leave_field", "leave field", show=False, id="leave-field"),
     ]
 
     def __init__(self, campaign: Campaign, settings: Settings | None = None):
@@ -118,6 +120,13 @@ class WorkbenchApp(App):
     def action_go(self, mode: str) -> None:
         if self.current_mode != mode:
             self.switch_mode(mode)
+
+    def action_leave_field(self) -> None:
+        from textual.widgets import Input
+
+        if isinstance(self.focused, Input):
+            self.screen.set_focus(None)
+            self.notify("left the field: number keys switch screens again", timeout=2)
 
     def action_keys(self) -> None:
         from scaleup.tui.widgets.keys import KeysScreen

@@ -152,7 +152,8 @@ def design_text(d: dict) -> Text:
 class ProjectionScreen(WorkScreen):
     MODE = "scaleup"
     TITLE = "Scale-up"
-    AUTO_FOCUS = "#proj-run"
+    # the results have the focus, so the number keys still switch screens; tab reaches the fields
+    AUTO_FOCUS = "#proj-results"
     BINDINGS = [
         Binding("f5", "project", "project (or enter)", id="project"),
         Binding("ctrl+o", "correlation", "next correlation", id="correlation"),
@@ -176,8 +177,9 @@ class ProjectionScreen(WorkScreen):
                         yield Input(e.default, id=f"proj-{e.key}", compact=True)
                     yield Static(Text(e.hint, style="dim"), classes="hint")
                     yield Static("", id=f"proj-err-{e.key}", classes="form-error", markup=False)
-                yield Static(Text("enter or F5 project · ctrl+o correlation · ctrl+s save · "
-                                  "ctrl+r report", style="dim"), classes="hint")
+                yield Static(Text("tab to the fields · enter or F5 project · ctrl+o correlation"
+                                  " · ctrl+s save · ctrl+r report · esc leaves a field",
+                                  style="dim"), classes="hint")
             with VerticalScroll(classes="results-pane", id="proj-results"):
                 yield Static(Text("type the pilot run and the target, then enter",
                                   style="dim"), id="proj-rules")

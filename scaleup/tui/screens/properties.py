@@ -116,8 +116,10 @@ def compute(values: dict) -> dict:
 def _table(*columns: str) -> Table:
     table = Table(box=None, padding=(0, 1), show_edge=False, header_style="bold")
     for i, name in enumerate(columns):
+        # the value column keeps its width; long source notes are the ones cut short
         table.add_column(name, no_wrap=True, overflow="ellipsis",
                          justify="right" if i == 1 else "left", max_width=34 if i == 0 else None,
+                         min_width=max(len(name), 9) if i == 1 else None,
                          style="dim" if i == len(columns) - 1 and i > 1 else None)
     return table
 
