@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import getpass
 import os
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -27,16 +28,15 @@ def _actor() -> str:
 
 
 def validate(specs: tuple[F.Field, ...], values: dict[str, Any], *, partial: bool = False,
-             **context) -> dict[str, Any]:
+             known: dict | None = None, **context) -> dict[str, Any]:
     """Check every field of a record; return {column: SI value} or raise listing all errors.
 
     ``values`` may be keyed by column (``speed_rps``) or by label (``speed``); a number keyed
     by its column is taken as SI, text is read with its unit. Unknown keys are refused by
-    name, so a typo is not silently dropped.
+    name, so a typo is not silently dropped. ``known`` (kept by an importer for one file)
+    holds the cells already read (:func:`scaleup.fields.read_known`).
     """
-    by_key = {s.column: s for s in specs} | {s.label: s for s in specs} | \
-        {s.label.replace(" ", "_"): s for s in specs} | \
-        {s.label.replace(" ", "-"): s for s in specs}
+    by_key = _keys_of(specs)
     unknown = [k for k in values if k not in by_key]
     if unknown:
         raise InputError(f"unknown field(s) {', '.join(map(repr, unknown))}; known: "
@@ -57,13 +57,33 @@ def validate(specs: tuple[F.Field, ...], values: dict[str, Any], *, partial: boo
                 clean[spec.column] = spec.default
             continue
         try:
-            clean[spec.column] = F.read(spec, given[spec.column], **dict(context),
-                                        si=spec.column in si_columns)
+            if known is None:
+                clean[spec.column] = F.read(spec, given[spec.column], **context,
+                                            si=spec.column in si_columns)
+            else:
+                clean[spec.column] = F.read_known(spec, given[spec.column], known, **context,
+                                                  si=spec.column in si_columns)
         except InputError as exc:
             problems.append(str(exc))
     if problems:
         raise InputError("; ".join(problems))
     return clean
+
+
+_KEYS: dict[int, tuple[tuple, dict]] = {}
+
+
+def _keys_of(specs: tuple[F.Field, ...]) -> dict[str, F.Field]:
+    """Every key a field may be given by (column, label, label with _ or -), built once per
+    tuple of fields: an import validates each of its rows against the same tuple."""
+    known = _KEYS.get(id(specs))
+    if known is None or known[0] is not specs:
+        if len(_KEYS) > 32:
+            _KEYS.clear()
+        known = _KEYS[id(specs)] = (specs, {s.column: s for s in specs} | {
+            s.label: s for s in specs} | {s.label.replace(" ", "_"): s for s in specs} | {
+            s.label.replace(" ", "-"): s for s in specs})
+    return known[1]
 
 
 def _basis(text: Any) -> str:
@@ -75,6 +95,19 @@ def _basis(text: Any) -> str:
     if any(t in str(text) for t in ("NL", "Nm3", "Nm^3", "Nl")):
         return "normal"
     return "normal" if isinstance(text, (int, float)) else "actual"
+
+
+def _looked_up(known: dict | None, kind: str, key: Any, look_up: Callable[[Any], Any]) -> Any:
+    """``look_up(key)``, remembered in ``known`` when given (up to a bound); a failed look-up
+    is not kept, so it is refused again with its message."""
+    if known is None:
+        return look_up(key)
+    found = known.get((kind, key))
+    if found is None:
+        found = look_up(key)
+        if len(known) < F.KNOWN_MAX:
+            known[(kind, key)] = found
+    return found
 
 
 def liquid_volume(vessel: dict) -> float:
@@ -188,6 +221,10 @@ class Campaign:
             raise VesselNotFound(f"no vessel {key!r}" + (" (it is deleted)" if found else "")
                                  + f"; known vessels: {', '.join(names) or 'none'}")
         return found[0]
+
+    def _vessel_and_volume(self, key: str | int) -> tuple[dict, float]:
+        row = self._vessel_row(key)
+        return row, liquid_volume(row)
 
     def vessel(self, key: str | int, *, include_deleted: bool = False) -> dict:
         """A vessel with its ``impellers`` (list, lowest first) and ``sparger`` (or None)."""
@@ -356,13 +393,15 @@ class Campaign:
 
     # ---- runs ----------------------------------------------------------------------------
     def _clean_run(self, values: dict[str, Any], *, partial: bool = False,
-                   current: dict | None = None) -> dict:
+                   current: dict | None = None, known: dict | None = None) -> dict:
+        """A run's values checked and in SI. ``known`` (kept by an importer for one file)
+        remembers the vessels, media and cells found, so each is looked up or read once."""
         values = dict(values)
         vessel_key = values.get("vessel", current["vessel_id"] if current else None)
         if vessel_key is None:
             raise InputError("is required", "vessel")
-        vessel = self._vessel_row(vessel_key)
-        context = {"liquid_volume_m3": liquid_volume(vessel)}
+        vessel, volume = _looked_up(known, "vessel", vessel_key, self._vessel_and_volume)
+        context = {"liquid_volume_m3": volume}
         gas_key = next((k for k in ("gas flow", "gas_flow", "gas-flow", "gas_flow_mol_s")
                         if k in values), None)
         temp_key = next((k for k in ("temperature", "temperature_k") if k in values), None)
@@ -370,17 +409,19 @@ class Campaign:
             from scaleup import units
 
             try:
-                context["temperature_k"] = units.parse(values[temp_key], "temperature",
-                                                       "temperature")
+                context["temperature_k"] = _looked_up(
+                    known, "temperature", values[temp_key],
+                    lambda text: units.parse(text, "temperature", "temperature"))
                 context["pressure_pa"] = vessel["head_pressure_pa"]
             except InputError:
                 pass  # reported with the other fields below
-        clean = validate(F.RUN, values, partial=partial, **context)
+        clean = validate(F.RUN, values, partial=partial, known=known, **context)
         if "vessel" in clean:
             clean["vessel_id"] = vessel["id"]
             del clean["vessel"]
         if "medium" in clean:
-            clean["medium_id"] = self._medium_row(clean.pop("medium"))["id"]
+            clean["medium_id"] = _looked_up(known, "medium", clean.pop("medium"),
+                                            self._medium_row)["id"]
         if gas_key is not None:
             clean["gas_flow_basis"] = _basis(values[gas_key])
         kla = clean.get("kla_per_s", current.get("kla_per_s") if current else None)

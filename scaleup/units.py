@@ -26,6 +26,7 @@ import math
 import re
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import NamedTuple
 
 from scaleup.errors import InputError, MissingUnit, UnknownUnit, WrongDimension
 
@@ -294,9 +295,69 @@ def _quantity(value: float, unit: str, field: str, text):
 _EXOTIC_PREFIXES = ("ronto", "quecto", "ronna", "quetta")
 
 
+class _Linear(NamedTuple):
+    """A learnt conversion: ``(value * scale + offset) * factor``, pint's own arithmetic."""
+
+    scale: float
+    offset: float | None  # None: a plain factor, ``value * scale``
+    factor: float
+    finite: bool  # refuse an overflow to infinity (as the first reading did)
+    basis: str = ""  # gas flows: "normal", "molar" or "actual"
+
+    def apply(self, value: float) -> float:
+        if self.offset is None:
+            return value * self.scale
+        return (value * self.scale + self.offset) * self.factor
+
+
+# pint takes ~50 us to read a unit; a file of 100,000 runs repeats a few units, so each unit
+# (as typed, per kind) is read by pint once and then converted by a multiply-add. Only
+# successful readings are kept: a refused unit goes through pint again and gets its message.
+_LEARNT: dict[tuple[str, str], _Linear] = {}
+_LEARNT_MAX = 4096
+_PROBES = (0.0, 1.0, -40.0, 37.0, 0.1, 1e3, 123.456, 1e-7)
+
+
+def _learn(key: tuple[str, str], q, target: str, value: float, out: float, *,
+           finite: bool = True, basis: str = "") -> None:
+    """Remember how ``q``'s unit converts to ``target`` if it is affine and pint's arithmetic
+    is reproduced exactly (checked on the value read and on probes); otherwise nothing.
+
+    Logarithmic units (dB, pH) are not affine and are always read by pint.
+    """
+    if len(_LEARNT) >= _LEARNT_MAX:
+        return
+    ureg = registry()
+    try:
+        offset_unit = ureg._validate_and_extract(q._units)
+        if offset_unit is None:
+            rule = _Linear(float(ureg.Quantity(1.0, q.units).to(target).magnitude), None, 1.0,
+                           finite, basis)
+        else:
+            from pint.facets.nonmultiplicative.definitions import OffsetConverter
+
+            definition = ureg._units[offset_unit]
+            if type(definition.converter) is not OffsetConverter:
+                return
+            factor = float(ureg.Quantity(1.0, definition.reference).to(target).magnitude)
+            rule = _Linear(float(definition.converter.scale),
+                           float(definition.converter.offset), factor, finite, basis)
+        same = rule.apply(value) == out and all(
+            rule.apply(p) == float(ureg.Quantity(p, q.units).to(target).magnitude)
+            for p in _PROBES)
+    except Exception:  # pint internals changed: keep reading this unit with pint
+        return
+    if same:
+        _LEARNT[key] = rule
+
+
 def _to_si(value: float, unit: str, k: Kind, field: str, text) -> float:
     import pint
 
+    rule = _LEARNT.get((unit, k.name))
+    if rule is not None:
+        out = rule.apply(value)
+        return _finite(out, field, text) if rule.finite else out
     q = _quantity(value, unit, field, text)
     if any(p in str(q.units) for p in _EXOTIC_PREFIXES):
         # "rpx" would otherwise read as ronto-pixels: nobody means that
@@ -305,7 +366,9 @@ def _to_si(value: float, unit: str, k: Kind, field: str, text) -> float:
                                                                "turn", "degree")):
         # a bare frequency (1/s, Hz) is read as revolutions per second
         if q.check("1 / [time]"):
-            return float(q.to("1/s").magnitude)
+            out = float(q.to("1/s").magnitude)
+            _learn((unit, k.name), q, "1/s", value, out, finite=False)
+            return out
     try:
         out = float(q.to(k.si).magnitude)
     except pint.errors.DimensionalityError as exc:
@@ -315,6 +378,7 @@ def _to_si(value: float, unit: str, k: Kind, field: str, text) -> float:
     except Exception as exc:
         raise UnknownUnit(f'"{text}": cannot convert "{unit}" to {k.label}', field,
                           text) from exc
+    _learn((unit, k.name), q, k.si, value, out)
     return _finite(out, field, text)
 
 
@@ -341,25 +405,46 @@ def parse_gas_flow(text: str, field: str = "gas_flow", *, liquid_volume_m3: floa
         if not liquid_volume_m3:
             raise InputError(f'"{text}": vvm needs the liquid volume of the vessel', field, text)
         return value * liquid_volume_m3 / 60.0 * MOL_PER_NORMAL_M3
+    rule = _LEARNT.get((unit, "gas_flow"))
+    if rule is not None:
+        basis, flow = rule.basis, rule.apply(value)
+    else:
+        basis, flow = _gas_flow_pint(value, unit, field, text, example)
+    if basis == "normal":
+        return flow * MOL_PER_NORMAL_M3
+    if basis == "molar":
+        return flow
+    if temperature_k is None or pressure_pa is None:
+        raise InputError(f'"{text}" is an actual volumetric flow; give it at normal '
+                         'conditions ("NL/min", "Nm3/h", 0 degC and 101.325 kPa) or in vvm',
+                         field, text)
+    return flow * pressure_pa / (R * temperature_k)
+
+
+def _gas_flow_pint(value: float, unit: str, field: str, text: str, example: str
+                   ) -> tuple[str, float]:
+    """A gas flow read by pint: its basis (normal, molar, actual) and the flow in m3/s
+    (normal or actual) or mol/s; the unit's conversion is learnt for the next cells."""
     n = _NORMAL.match(unit)
     if n:
         volume_unit = "m**3" if n.group(1).startswith("m") else "liter"
         q = _quantity(value, volume_unit + n.group(2), field, text)
         if not q.check("[length] ** 3 / [time]"):
             raise WrongDimension(f'"{text}" is not a volume per time; {example}', field, text)
-        return float(q.to("m**3/s").magnitude) * MOL_PER_NORMAL_M3
-    q = _quantity(value, unit, field, text)
-    if q.check("[substance] / [time]"):
-        return float(q.to("mol/s").magnitude)
-    if q.check("[length] ** 3 / [time]"):
-        if temperature_k is None or pressure_pa is None:
-            raise InputError(f'"{text}" is an actual volumetric flow; give it at normal '
-                             'conditions ("NL/min", "Nm3/h", 0 degC and 101.325 kPa) or in vvm',
-                             field, text)
-        return float(q.to("m**3/s").magnitude) * pressure_pa / (R * temperature_k)
-    dim = str(q.dimensionality)
-    what = _DIMENSION_WORDS.get(dim, f"of dimension {dim}")
-    raise WrongDimension(f'"{text}" is {what}; {example}', field, text)
+        basis, target = "normal", "m**3/s"
+    else:
+        q = _quantity(value, unit, field, text)
+        if q.check("[substance] / [time]"):
+            basis, target = "molar", "mol/s"
+        elif q.check("[length] ** 3 / [time]"):
+            basis, target = "actual", "m**3/s"
+        else:
+            dim = str(q.dimensionality)
+            what = _DIMENSION_WORDS.get(dim, f"of dimension {dim}")
+            raise WrongDimension(f'"{text}" is {what}; {example}', field, text)
+    flow = float(q.to(target).magnitude)
+    _learn((unit, "gas_flow"), q, target, value, flow, finite=False, basis=basis)
+    return basis, flow
 
 
 def parse_dissolved_oxygen(text: str, field: str = "dissolved_oxygen", *,

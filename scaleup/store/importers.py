@@ -221,6 +221,7 @@ def plan_runs(campaign, table: Table, on_duplicate: str, decimal_comma: bool,
     file_refs: dict[str, int] = {}
     plan = []
     total = len(table.rows)
+    known: dict = {}  # vessels and media by name, looked up once for the file
     for done, (number, cells) in enumerate(table.numbered(), start=1):
         if done % 200 == 0 or done == total:
             progress("checking runs", done, total)
@@ -228,7 +229,7 @@ def plan_runs(campaign, table: Table, on_duplicate: str, decimal_comma: bool,
             break
         values, _, bad = row_values(table, mapping, number, cells, problems, decimal_comma)
         try:
-            clean = campaign._clean_run(values)
+            clean = campaign._clean_run(values, known=known)
         except InputError as exc:
             report_error(problems, number, exc, labels, values, bad)
             continue
@@ -267,28 +268,40 @@ def plan_runs(campaign, table: Table, on_duplicate: str, decimal_comma: bool,
     return plan
 
 
-def write_plan(campaign, entity: str, plan: list, add: Callable[[dict], int],
+def write_plan(campaign, entity: str, plan: list, add_many: Callable[[list[dict]], list[int]],
                progress: Progress, source: str) -> dict:
     """Carry out a checked plan of (row, clean record, stored duplicate, action) in the
-    caller's transaction; ``add(clean)`` stores a new record and returns its id."""
+    caller's transaction, in the plan's order; ``add_many(cleans)`` stores new records and
+    returns their ids. New records go in batches of up to 200, between the progress reports."""
     table = {"runs": "run", "fluxes": "flux"}[entity]
+    key = f"{table}_id"
     counts = {"add": 0, "skip": 0, "replace": 0}
-    rows = []
+    rows, waiting = [], []
+
+    def add_waiting() -> None:
+        for row, ident in zip(waiting, add_many([r["record"] for r in waiting]), strict=True):
+            row[key] = ident
+        waiting.clear()
+
     for done, (number, clean, existing, action) in enumerate(plan, start=1):
-        ident = add(clean) if action == "add" else existing
-        if action == "replace":
+        row = {"row": number, "action": action, key: existing, "record": clean}
+        if action == "add":
+            waiting.append(row)
+        elif action == "replace":
+            add_waiting()
             records.update(campaign.conn, table, existing, clean, actor=campaign.actor)
         counts[action] += 1
-        rows.append({"row": number, "action": action, f"{table}_id": ident, "record": clean})
+        rows.append(row)
         if done % 200 == 0 or done == len(plan):
+            add_waiting()
             progress(f"writing {entity}", done, len(plan))
     return {"entity": entity, "added": counts["add"], "skipped": counts["skip"],
             "replaced": counts["replace"], "rows": rows, "source": source}
 
 
 def write_runs(campaign, plan: list, progress: Progress, source: str) -> dict:
-    return write_plan(campaign, "runs", plan, lambda clean: records.insert(
-        campaign.conn, "run", clean, actor=campaign.actor, action="import"), progress, source)
+    return write_plan(campaign, "runs", plan, lambda cleans: records.insert_many(
+        campaign.conn, "run", cleans, actor=campaign.actor, action="import"), progress, source)
 
 
 # ---------------------------------------------------------------------------------- fluxes
@@ -353,11 +366,11 @@ def import_fluxes(campaign, path: str | Path, *, sheet: str | None = None,
                      "add" if existing is None else on_duplicate))
     rejected_if(problems, table.source)
 
-    def add(clean: dict) -> int:
-        return campaign.add_flux({k: v for k, v in clean.items() if k != "run_id"},
-                                 clean["run_id"])
-    return kept_unless_dry(campaign, lambda: write_plan(campaign, "fluxes", plan, add, progress,
-                                                        table.source), dry_run)
+    def add_many(cleans: list[dict]) -> list[int]:
+        return [campaign.add_flux({k: v for k, v in clean.items() if k != "run_id"},
+                                  clean["run_id"]) for clean in cleans]
+    return kept_unless_dry(campaign, lambda: write_plan(campaign, "fluxes", plan, add_many,
+                                                        progress, table.source), dry_run)
 
 
 def _same_flux(a: dict, b: dict) -> bool:

@@ -141,21 +141,46 @@ def _dump(record: dict | None) -> str | None:
 def insert(conn: sqlite3.Connection, table: str, values: dict[str, Any], *,
            actor: str = "", action: str = "insert") -> int:
     """Insert one record and audit it; returns its id."""
-    columns = [_name(c) for c in values]
-    sql = (f"INSERT INTO {_name(table)} ({', '.join(columns)}) "
-           f"VALUES ({', '.join('?' for _ in columns)})")
+    return insert_many(conn, table, [values], actor=actor, action=action)[0]
+
+
+def insert_many(conn: sqlite3.Connection, table: str, many: list[dict[str, Any]], *,
+                actor: str = "", action: str = "insert") -> list[int]:
+    """Insert records in order and audit each as :func:`insert` does; returns their ids.
+
+    One transaction, the stored rows read back in chunks and the audit rows written by one
+    ``executemany``: an import of 100,000 runs would otherwise spend most of its time in
+    five statements per row.
+    """
+    statements: dict[tuple[str, ...], str] = {}
+    ids = []
     with transaction(conn):
-        try:
-            cur = conn.execute(sql, [values[c] for c in columns])
-        except sqlite3.IntegrityError as exc:
-            raise constraint_error(exc, table, values) from exc
-        except OverflowError:
-            raise _too_large(values) from None
-        record_id = cur.lastrowid
+        for values in many:
+            columns = tuple(values)
+            sql = statements.get(columns)
+            if sql is None:
+                names = [_name(c) for c in columns]
+                sql = statements[columns] = (f"INSERT INTO {_name(table)} ({', '.join(names)}) "
+                                             f"VALUES ({', '.join('?' for _ in names)})")
+            try:
+                cur = conn.execute(sql, [values[c] for c in columns])
+            except sqlite3.IntegrityError as exc:
+                raise constraint_error(exc, table, values) from exc
+            except OverflowError:
+                raise _too_large(values) from None
+            ids.append(cur.lastrowid)
         if table in VERSIONED or table in CHILDREN:
-            _audit(conn, table, record_id, action, None, get(conn, table, record_id,
-                                                              include_deleted=True), actor)
-    return record_id
+            stored: dict[int, dict] = {}
+            for start in range(0, len(ids), 500):
+                chunk = ids[start:start + 500]
+                for row in rows(conn, f"SELECT * FROM {table} WHERE id IN "
+                                      f"({', '.join('?' for _ in chunk)})", tuple(chunk)):
+                    stored[row["id"]] = row
+            conn.executemany(
+                "INSERT INTO audit_log (actor, table_name, record_id, action, old_json, "
+                "new_json) VALUES (?, ?, ?, ?, ?, ?)",
+                [(actor, table, i, action, None, _dump(stored[i])) for i in ids])
+    return ids
 
 
 def update(conn: sqlite3.Connection, table: str, record_id: int, changes: dict[str, Any], *,

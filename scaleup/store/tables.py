@@ -388,6 +388,10 @@ def cell_text(value: str, unit: str, *, decimal_comma: bool = False) -> str:
     value = value.strip()
     if not value:
         return ""
+    if not decimal_comma and _PLAIN_NUMBER.match(value):  # the common case: nothing to refuse
+        if unit and not math.isfinite(float(value)):
+            raise InputError(f'"{value}" is not a finite number')
+        return f"{value} {unit}" if unit else value
     text = _separators(value, decimal_comma)
     if not unit:
         return text
