@@ -36,3 +36,10 @@ def demo_path(tmp_path_factory):
     with Campaign.create(path) as c:
         c.load_demo()
     return path
+
+
+@pytest.fixture(autouse=True)
+def _work_in_a_temporary_folder(tmp_path_factory, monkeypatch):
+    """Every test runs in a folder of its own, so a command given a random value as a file
+    name (the bad-input tests do that) never writes into the repository."""
+    monkeypatch.chdir(tmp_path_factory.mktemp("cwd"))

@@ -6,7 +6,7 @@ import math
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from scaleup.errors import InputError
@@ -157,7 +157,9 @@ def test_scale_up_then_down_is_the_identity(volume, bottom):
 @settings(max_examples=30, deadline=None)
 @given(st.floats(0.1, 200.0), st.floats(1.0, 3.0), st.floats(0.25, 0.5))
 def test_non_similar_scaling_meets_the_explicit_targets(volume, h_t, d_t):
-    # the pilot's top impeller sits 2 D above the bottom one, at C = T/3
+    # the pilot's top impeller sits 2 D above the bottom one, at C = T/3; right at the
+    # boundary the test's arithmetic and the code's may round to opposite sides
+    assume(abs(1 / 3 + 2 * d_t - h_t) > 1e-9)
     if 1 / 3 + 2 * d_t >= h_t:
         with pytest.raises(InputError, match="above the liquid"):
             scale_to_volume(pilot("torispherical"), volume, aspect_ratio=h_t, impeller_ratio=d_t)
