@@ -2,9 +2,18 @@
 
 from __future__ import annotations
 
+import os
+
 import pytest
+from hypothesis import settings
 
 from scaleup.campaign import Campaign
+
+# CI runs once on a clean clone: the same examples every time, so a pass is repeatable;
+# developers keep random examples, which find new edge cases.
+settings.register_profile("ci", derandomize=True, print_blob=True)
+if os.environ.get("CI"):
+    settings.load_profile("ci")
 
 P20 = {"name": "T-20", "tank diameter": "0.29 m", "liquid height": "0.29 m",
        "head pressure": "0.2 barg", "baffle width": "29 mm"}
