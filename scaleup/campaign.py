@@ -495,18 +495,42 @@ class Campaign:
         return run_conditions(run, self.vessel(run["vessel_id"], include_deleted=True),
                               self.medium(run["medium_id"], include_deleted=True), **options)
 
+    @staticmethod
+    def _selected_runs_sql(where: str | None, columns: str) -> tuple[str, list]:
+        """SQL of ``columns`` of the live runs matching ``where`` (``r`` the run, ``v`` its
+        vessel, ``m`` its medium), by id."""
+        condition, params = compile_filter(where)
+        return (f"SELECT {columns} FROM run r JOIN vessel v ON v.id = r.vessel_id JOIN medium m "
+                f"ON m.id = r.medium_id WHERE r.id IN (SELECT id FROM run_view WHERE "
+                f"{condition}) ORDER BY r.id", params)
+
+    def run_records(self, where: str | None = None) -> list[dict]:
+        """The stored records of the live runs matching ``where``, by id, each with its
+        ``vessel`` and ``medium`` names and the medium's ``coalescence``: one query."""
+        return records.read_rows(self.conn, *self._selected_runs_sql(
+            where, "r.*, v.name AS vessel, m.name AS medium, m.coalescence AS coalescence"))
+
+    def runs_derived_columns(self, where: str | None = None, **options) -> dict:
+        """What a kLa fit reads of the runs matching ``where``, as columns (runs by id):
+        :data:`scaleup.conditions.DERIVED_INPUTS`, ``kla_per_s``, ``kla_stderr_per_s``,
+        ``vessel``, ``coalescence`` and the derived keys of :meth:`runs_derived`. No dict
+        per run, so 100,000 runs take little memory."""
+        from scaleup.conditions import DERIVED_INPUTS, derived_columns
+
+        columns = records.read_columns(self.conn, *self._selected_runs_sql(
+            where, ", ".join(f"r.{k}" for k in DERIVED_INPUTS) + ", r.kla_per_s, "
+            "r.kla_stderr_per_s, v.name AS vessel, m.coalescence AS coalescence"))
+        vessels = {v["id"]: v for v in self.vessels(include_deleted=True)}
+        media = {m["id"]: m for m in self.media(include_deleted=True)}
+        return {**columns, **derived_columns(columns, vessels, media, **options)}
+
     def runs_derived(self, where: str | None = None, **options) -> list[dict]:
         """Runs of the runs view with their derived hydrodynamics (``power_per_volume_w_m3``,
         ``gassed_power_per_volume_w_m3``, ``superficial_gas_velocity_m_s``, ``vvm``,
         ``flow_number``, ``regime``, ``tip_speed_m_s``, ``blend_time_95_s``, ...)."""
         from scaleup.conditions import derived_table
 
-        condition, params = compile_filter(where)
-        runs = records.read_rows(
-            self.conn, "SELECT r.*, v.name AS vessel, m.name AS medium, m.coalescence AS "
-            "coalescence FROM run r JOIN vessel v ON v.id = r.vessel_id JOIN medium m ON m.id = "
-            f"r.medium_id WHERE r.id IN (SELECT id FROM run_view WHERE {condition}) ORDER BY r.id",
-            params)
+        runs = self.run_records(where)
         vessels = {v["id"]: v for v in self.vessels(include_deleted=True)}
         media = {m["id"]: m for m in self.media(include_deleted=True)}
         return derived_table(runs, vessels, media, **options)
@@ -616,9 +640,9 @@ class Campaign:
                 bootstrap_kind: str = "runs", **options):
         """Fit kLa to the selected runs (options of :func:`scaleup.correlate.fit_kla`);
         returns a :class:`scaleup.correlate.FitReport` with leave-one-vessel-out."""
-        from scaleup.correlate import fit_kla, kla_observations_from_runs, report_fit
+        from scaleup.correlate import fit_kla, kla_observations_from_columns, report_fit
 
-        data, skipped = kla_observations_from_runs(self.runs_derived(where))
+        data, skipped = kla_observations_from_columns(self.runs_derived_columns(where))
         return report_fit(fit_kla(data, **options), data, bootstrap=bootstrap,
                           bootstrap_kind=bootstrap_kind, selection=where or "", skipped=skipped)
 
@@ -695,11 +719,11 @@ class Campaign:
         (comparison rows, warnings)."""
         from scaleup.correlate import (
             compare_correlations,
-            kla_observations_from_runs,
+            kla_observations_from_columns,
             published_correlation,
         )
 
-        data, skipped = kla_observations_from_runs(self.runs_derived(where))
+        data, skipped = kla_observations_from_columns(self.runs_derived_columns(where))
         models = {**fits, **{key: published_correlation(key) for key in published}}
         warnings = [f"{len(skipped)} run(s) without kLa or operating point left out"] \
             if skipped else []

@@ -106,61 +106,84 @@ def run_conditions(run: dict, vessel_row: dict, medium: dict, **options) -> RunC
                          warnings=tuple(point.warnings))
 
 
+# what derived_columns reads of each run, and the keys it adds
+DERIVED_INPUTS = ("id", "vessel_id", "medium_id", "temperature_k", "head_pressure_pa",
+                  "speed_rps", "gas_flow_mol_s", "power_measured_w", "torque_measured_n_m")
+# derived key -> attribute of the operating point (the liquid's three are added to these)
+_POINT_ATTRIBUTES = {
+    "power_w": "power", "gassed_power_w": "gassed_power",
+    "power_per_volume_w_m3": "power_per_volume",
+    "gassed_power_per_volume_w_m3": "gassed_power_per_volume",
+    "superficial_gas_velocity_m_s": "superficial_gas_velocity", "vvm": "vvm",
+    "flow_number": "flow_number", "froude": "froude", "reynolds": "reynolds",
+    "regime": "regime", "tip_speed_m_s": "tip_speed", "blend_time_95_s": "blend_time_95",
+    "flooding_margin": "flooding_margin"}
+DERIVED_KEYS = (*_POINT_ATTRIBUTES, "liquid_volume_m3", "density_kg_m3", "viscosity_pa_s",
+                "surface_tension_n_m")
+
+
 def derived_table(runs: list[dict], vessels: dict[int, dict], media: dict[int, dict],
                   **options) -> list[dict]:
-    """P/V, Pg/V, us, vvm, Fl, regime ... for many runs, vectorised per vessel and state.
+    """P/V, Pg/V, us, vvm, Fl, regime ... for many runs: each run with the keys of
+    :data:`DERIVED_KEYS` added (see :func:`derived_columns`)."""
+    columns = {key: [r.get(key) for r in runs] for key in DERIVED_INPUTS}
+    derived = derived_columns(columns, vessels, media, **options)
+    values = zip(*(derived[key].tolist() for key in DERIVED_KEYS), strict=True)
+    return [{**r, **dict(zip(DERIVED_KEYS, v, strict=True))} for r, v in zip(runs, values,
+                                                                              strict=True)]
 
-    Runs that share a vessel, medium, temperature and pressure (and have no measured power)
-    are evaluated in one call over their speed and gas-flow arrays.
+
+def derived_columns(columns: dict[str, list], vessels: dict[int, dict], media: dict[int, dict],
+                    **options) -> dict:
+    """The derived hydrodynamics of many runs given as columns, vectorised per vessel and state.
+
+    ``columns`` holds the lists of :data:`DERIVED_INPUTS` (one entry per run); returns one
+    object array per key of :data:`DERIVED_KEYS`, in the runs' order, holding the Python
+    values (float, or str for ``regime``). Runs that share a vessel, medium, temperature
+    and pressure (and have no measured power or torque) are evaluated in one call of
+    :func:`scaleup.hydro.point.operating_point` over their speed and gas-flow arrays; the
+    others one by one with :func:`run_conditions`. ``options`` go to ``operating_point``.
     """
     import numpy as np
 
     from scaleup.hydro.point import operating_point
 
-    groups: dict[tuple, list[dict]] = {}
-    out: dict[int, dict] = {}
-    for r in runs:
-        v = vessels[r["vessel_id"]]
-        pressure = r.get("head_pressure_pa") or v["head_pressure_pa"]
-        key = (r["vessel_id"], r["medium_id"], r["temperature_k"], pressure)
-        if r.get("power_measured_w") is not None or r.get("torque_measured_n_m") is not None:
-            rc = run_conditions(r, v, media[r["medium_id"]], **options)
-            out[r["id"]] = _derived(rc.point, rc.liquid, None)
+    n = len(columns["id"])
+    out = {key: np.empty(n, dtype=object) for key in DERIVED_KEYS}
+    groups: dict[tuple, list[int]] = {}
+    head = {i: v["head_pressure_pa"] for i, v in vessels.items()}
+    rows = zip(columns["vessel_id"], columns["medium_id"], columns["temperature_k"],
+               columns["head_pressure_pa"], columns["power_measured_w"],
+               columns["torque_measured_n_m"], strict=True)
+    for i, (vessel_id, medium_id, temperature, pressure, power, torque) in enumerate(rows):
+        if power is not None or torque is not None:
+            run = {key: columns[key][i] for key in DERIVED_INPUTS}
+            rc = run_conditions(run, vessels[vessel_id], media[medium_id], **options)
+            for key, value in _derived(rc.point, rc.liquid).items():
+                out[key][i] = np.asarray(value).item()
             continue
-        groups.setdefault(key, []).append(r)
+        groups.setdefault((vessel_id, medium_id, temperature, pressure or head[vessel_id]),
+                          []).append(i)
+    speeds = np.array(columns["speed_rps"], dtype=float)
+    flows = np.array(columns["gas_flow_mol_s"], dtype=float)
     for (vessel_id, medium_id, temperature, pressure), members in groups.items():
         from dataclasses import replace
 
         vessel = replace(vessel_from_row(vessels[vessel_id]), head_pressure=pressure)
         liquid = liquid_for(media[medium_id], temperature, pressure)
-        speeds = np.array([m["speed_rps"] for m in members])
-        flows = np.array([m["gas_flow_mol_s"] for m in members])
-        point = operating_point(vessel, speeds, flows, temperature, liquid.density_kg_m3,
-                                liquid.viscosity_pa_s, liquid.surface_tension_n_m, **options)
-        for i, m in enumerate(members):
-            out[m["id"]] = _derived(point, liquid, i)
-    return [{**r, **out[r["id"]]} for r in runs]
+        at = np.array(members)
+        point = operating_point(vessel, speeds[at], flows[at], temperature,
+                                liquid.density_kg_m3, liquid.viscosity_pa_s,
+                                liquid.surface_tension_n_m, **options)
+        for key, value in _derived(point, liquid).items():
+            a = np.asarray(value)
+            out[key][at] = a.item() if a.ndim == 0 else a.astype(object)
+    return out
 
 
-def _derived(point, liquid, i: int | None) -> dict:
-    import numpy as np
-
-    def pick(value):
-        a = np.asarray(value)
-        return (a.item() if a.ndim == 0 else a[i].item()) if i is not None or a.ndim == 0 \
-            else a.item()
-
-    return {
-        "power_w": pick(point.power), "gassed_power_w": pick(point.gassed_power),
-        "power_per_volume_w_m3": pick(point.power_per_volume),
-        "gassed_power_per_volume_w_m3": pick(point.gassed_power_per_volume),
-        "superficial_gas_velocity_m_s": pick(point.superficial_gas_velocity),
-        "vvm": pick(point.vvm), "flow_number": pick(point.flow_number),
-        "froude": pick(point.froude), "reynolds": pick(point.reynolds),
-        "regime": pick(point.regime), "tip_speed_m_s": pick(point.tip_speed),
-        "blend_time_95_s": pick(point.blend_time_95),
-        "flooding_margin": pick(point.flooding_margin),
-        "liquid_volume_m3": float(point.liquid_volume),
-        "density_kg_m3": liquid.density_kg_m3, "viscosity_pa_s": liquid.viscosity_pa_s,
-        "surface_tension_n_m": liquid.surface_tension_n_m,
-    }
+def _derived(point, liquid) -> dict:
+    """The values of :data:`DERIVED_KEYS` of an operating point (scalars or arrays)."""
+    return {**{key: getattr(point, name) for key, name in _POINT_ATTRIBUTES.items()},
+            "liquid_volume_m3": float(point.liquid_volume),
+            "density_kg_m3": liquid.density_kg_m3, "viscosity_pa_s": liquid.viscosity_pa_s,
+            "surface_tension_n_m": liquid.surface_tension_n_m}

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import NamedTuple
@@ -481,8 +482,42 @@ def convert(value_si: float, kind: str, unit: str | None = None) -> float:
             return convert(v, "pressure", g.group(1))
     if kind == "temperature" and unit in ("degC", "°C"):
         return value_si - 273.15
-    ureg = registry()
-    return float(ureg.Quantity(value_si, k.si).to(_clean_unit(unit)).magnitude)
+    rule = _LEARNT.get((unit, "to " + kind))
+    if rule is not None:
+        return float(rule.apply(value_si))
+    target = _clean_unit(unit)
+    q = registry().Quantity(value_si, k.si)
+    out = float(q.to(target).magnitude)
+    _learn((unit, "to " + kind), q, target, value_si, out, finite=False)
+    return out
+
+
+def convert_many(values_si: Sequence[float | None], kind: str, unit: str | None = None
+                 ) -> list[float | None]:
+    """:func:`convert` over a column at once (None stays None), with the same arithmetic.
+
+    Examples
+    --------
+    >>> convert_many([10.0, None, 5.0], "speed")
+    [600.0, None, 300.0]
+    """
+    import numpy as np
+
+    k = KINDS[kind]
+    unit = unit or k.display
+    a = np.array([np.nan if v is None else v for v in values_si], dtype=float)
+    if kind == "pressure" and (g := _GAUGE.match(unit)):
+        out = convert_many((a - P_ATM if g.group(2) == "g" else a).tolist(), kind, g.group(1))
+    elif kind == "temperature" and unit in ("degC", "°C"):
+        out = (a - 273.15).tolist()
+    else:
+        first = next((v for v in values_si if v is not None and math.isfinite(v)), None)
+        if first is not None:
+            convert(first, kind, unit)  # learns the unit's conversion
+        rule = _LEARNT.get((unit, "to " + kind))
+        out = rule.apply(a).tolist() if rule is not None else [
+            None if v is None else convert(v, kind, unit) for v in values_si]
+    return [None if v is None else o for v, o in zip(values_si, out, strict=True)]
 
 
 def gas_flow_to(value_mol_s: float, unit: str, liquid_volume_m3: float | None = None) -> float:

@@ -43,6 +43,7 @@ from scaleup.correlate.published import (
 )
 from scaleup.correlate.resampling import BootstrapResult, attach_bootstrap, bootstrap
 from scaleup.correlate.runs import (
+    kla_observations_from_columns,
     kla_observations_from_runs,
     sherwood_observations_from_fluxes,
 )
@@ -61,7 +62,7 @@ __all__ = [
     "ScaleBias", "attach_bootstrap", "bootstrap", "compare_correlations", "domain_from_runs",
     "error_measures", "fit", "fit_kla", "fit_sherwood", "kl_correlations", "kla",
     "kla_correlations", "kla_form", "kla_methods", "kla_observations",
-    "kla_observations_from_runs", "leave_one_vessel_out", "published_correlation", "report_fit",
+    "kla_observations_from_columns", "kla_observations_from_runs", "leave_one_vessel_out", "published_correlation", "report_fit",
     "sherwood", "sherwood_correlations", "sherwood_observations",
     "sherwood_observations_from_fluxes", "stated_domain",
 ]

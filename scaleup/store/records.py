@@ -95,11 +95,15 @@ def _name(identifier: str) -> str:
     return identifier
 
 
-def rows(conn: sqlite3.Connection, sql: str, params: tuple | dict = ()) -> list[dict]:
+def _execute(conn: sqlite3.Connection, sql: str, params: tuple | dict) -> sqlite3.Cursor:
     try:
-        cur = conn.execute(sql, params)
+        return conn.execute(sql, params)
     except OverflowError:  # an id or count typed beyond what SQLite stores (2**63 - 1)
         raise InputError("a number given is too large (at most 9223372036854775807)") from None
+
+
+def rows(conn: sqlite3.Connection, sql: str, params: tuple | dict = ()) -> list[dict]:
+    cur = _execute(conn, sql, params)
     names = [d[0] for d in cur.description]
     return [dict(zip(names, r, strict=True)) for r in cur.fetchall()]
 
@@ -113,6 +117,19 @@ def read_rows(conn: sqlite3.Connection, sql: str, params: tuple | list | dict = 
     with db.guarded_reads(conn):
         return rows(conn, "/* guarded read */ " + sql,
                     tuple(params) if isinstance(params, list) else params)
+
+
+def read_columns(conn: sqlite3.Connection, sql: str, params: tuple | list | dict = ()
+                 ) -> dict[str, list]:
+    """:func:`read_rows` as ``{column: [values]}``, without a dict per row (a fit over
+    100,000 runs reads a dozen columns)."""
+    with db.guarded_reads(conn):
+        cur = _execute(conn, "/* guarded read */ " + sql,
+                       tuple(params) if isinstance(params, list) else params)
+        names = [d[0] for d in cur.description]
+        found = cur.fetchall()
+    return {name: list(values) for name, values in zip(
+        names, zip(*found, strict=True) if found else [()] * len(names), strict=True)}
 
 
 def get(conn: sqlite3.Connection, table: str, record_id: int, *,
