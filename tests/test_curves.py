@@ -266,7 +266,8 @@ def _public_functions():
     import inspect
 
     names = ["expfit", "curves", "curve_checks", "curve_table", "dynamic", "gas_balance",
-             "sulfite", "flux", "temperature", "replicates", "stored", "loglinear"]
+             "sulfite", "flux", "temperature", "replicates", "stored", "loglinear",
+             "taylorfit", "lagbias", "windowfit"]
     for module_name in names:
         module = importlib.import_module(f"scaleup.measure.{module_name}")
         for name, func in inspect.getmembers(module, inspect.isfunction):

@@ -1,11 +1,14 @@
 """What a DO curve must satisfy before it is fitted, and where its rise begins.
 
 Each check turns a curve that cannot give a kLa into a :class:`Rejected` with a code and a
-sentence that says what is wrong and what to do, instead of a number.
+sentence that says what is wrong and what to do, instead of a number. :func:`prepare_batch`
+runs the checks on many curves at once and hands the few that need a closer look (gaps,
+time going back, too short, flat or nearly so) to :func:`prepare`, one by one.
 """
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -125,6 +128,69 @@ def detect_start(t_s: np.ndarray, c: np.ndarray) -> float:
     return float(t[i])
 
 
+def detect_starts(t_s: np.ndarray, c: np.ndarray, length: np.ndarray) -> np.ndarray:
+    """:func:`detect_start` for each row of a padded batch.
+
+    Parameters
+    ----------
+    t_s : array (m, n)
+        Sample times [s], increasing along each row for ``length`` samples.
+    c : array (m, n)
+        DO readings [any unit].
+    length : int array (m,)
+        Samples in each row [-].
+
+    Returns
+    -------
+    array (m,)
+        Start time of each row [s].
+    """
+    out = np.empty(length.size)
+    for size in np.unique(length):
+        rows = np.flatnonzero(length == size)
+        if rows.size < 4 or size < 8:
+            out[rows] = [detect_start(t_s[i, :size], c[i, :size]) for i in rows]
+        else:
+            out[rows] = _detect_rows(t_s[rows, :size], c[rows, :size])
+    return out
+
+
+def _detect_rows(t: np.ndarray, y: np.ndarray) -> np.ndarray:
+    """:func:`detect_start` on rows of equal length, step for step."""
+    from scipy.ndimage import uniform_filter1d
+
+    m, n = y.shape
+    q = max(3, n // 20)
+    first, last = y[:, :q].mean(1), y[:, -q:].mean(1)
+    change = last - first
+    falling = change < 0
+    if falling.any():
+        y = np.where(falling[:, None], -y, y)
+        change = np.abs(change)
+    width = max(1, min(25, n // 50)) | 1
+    smooth = uniform_filter1d(y, width, axis=1, mode="nearest")
+    d2 = np.abs(y[:, 2:] - 2.0 * y[:, 1:-1] + y[:, :-2])
+    half = d2.shape[1] // 2
+    noise = 1.4826 * np.partition(d2, half, axis=1)[:, half] / np.sqrt(6.0) / np.sqrt(width)
+    base = y[:, :width].mean(1)
+    cols = np.arange(n)
+    above = smooth > (base + np.maximum(0.1 * change, 5 * noise))[:, None]
+    rise = np.argmax(above, axis=1)
+    flat = ((smooth <= (base + np.maximum(0.005 * change, 3 * noise))[:, None])
+            & (cols < rise[:, None]))
+    last_flat = n - 1 - np.argmax(flat[:, ::-1], axis=1)
+    found = above.any(1) & flat.any(1) & (last_flat >= width)
+    out = t[:, 0].copy()
+    if found.any():
+        rows = np.flatnonzero(found)
+        level = base[rows] + np.maximum(0.005 * change[rows], 3 * noise[rows] * np.sqrt(width))
+        # the average leaves the level up to width/2 samples early: step on along the data
+        ahead = ((y[rows] > level[:, None]) | (cols >= rise[rows, None])) \
+            & (cols > last_flat[rows, None])
+        out[rows] = t[rows, np.argmax(ahead, axis=1) - 1]
+    return out
+
+
 def prepare(t_s, c, *, start_s: float | None = None,
             c_star: float | None = None) -> Prepared | Rejected:
     """Check one curve and find its start; a :class:`Rejected` says why it cannot be fitted.
@@ -197,3 +263,197 @@ def prepare(t_s, c, *, start_s: float | None = None,
 def _too_short(n: int, what: str) -> Rejected:
     return Rejected(f"too short: {n} {what}; fitting kLa, C_inf and C0 (3 parameters) needs at "
                     f"least {MIN_POINTS}", "too_short")
+
+
+@dataclass(frozen=True, eq=False)
+class Batch:
+    """Curves that passed the checks, padded into ``(m, n)`` arrays.
+
+    Row i holds ``length[i]`` finite samples in time order (zeros after them); its rise
+    starts at ``start[i]`` [s], and ``first[i]`` is the index of its first sample at or after
+    that time. ``spacing[i]`` is its time step [s] when its samples are evenly spaced (steps
+    equal to 1e-9), nan otherwise. ``index`` is the position of each row in the caller's list
+    of curves.
+    """
+
+    index: np.ndarray
+    t: np.ndarray
+    c: np.ndarray
+    length: np.ndarray
+    first: np.ndarray
+    start: np.ndarray
+    detected: np.ndarray
+    spacing: np.ndarray
+    warnings: list
+
+
+def row_means(c: np.ndarray, begin: np.ndarray, count: np.ndarray
+              ) -> tuple[np.ndarray, np.ndarray]:
+    """Mean and range of ``count[i]`` samples of each row i from column ``begin[i]``.
+
+    Parameters
+    ----------
+    c : array (m, n)
+        Readings [any unit].
+    begin : int array (m,)
+        First column of each run [sample index].
+    count : int array (m,)
+        Samples in each run, at least one [-].
+
+    Returns
+    -------
+    (array, array)
+        Mean and max - min of each run [unit of ``c``].
+    """
+    cols = begin[:, None] + np.arange(int(count.max()))
+    inside = cols < (begin + count)[:, None]
+    values = c[np.arange(c.shape[0])[:, None], np.where(inside, cols, begin[:, None])]
+    mean = np.where(inside, values, 0.0).sum(1) / count
+    return mean, values.max(1) - values.min(1)
+
+
+def _clearly_rising(c: np.ndarray, length: np.ndarray) -> np.ndarray:
+    """Rows whose change from the first to the last samples is certainly more than five
+    times their noise (:func:`noise_level`), so that :func:`prepare` would pass them.
+
+    The median absolute second difference is below x when more than half of the second
+    differences are; counting over the first 52 % of the columns is enough for a curve whose
+    noise is small against its rise, and a curve that fails the count goes to
+    :func:`prepare`, which decides exactly.
+    """
+    q = np.maximum(3, length // 20)
+    first, _ = row_means(c, np.zeros_like(length), q)
+    last, _ = row_means(c, length - q, q)
+    change = np.abs(last - first)
+    scale = np.maximum(np.maximum(np.abs(first), np.abs(last)), 1e-300)
+    # 5 * 1.4826 * median / sqrt(6) < change, with a margin for rounding
+    below = 0.999 * change * np.sqrt(6.0) / (5 * 1.4826)
+    half = (length - 2) // 2
+    span = min(c.shape[1] - 2, int(np.ceil(0.52 * (int(length.max()) - 2))) + 2)
+    second = np.multiply(c[:, 1:span + 1], 2.0)
+    np.subtract(c[:, 2:span + 2], second, out=second)
+    second += c[:, :span]
+    np.abs(second, out=second)
+    small = second < below[:, None]
+    if (length < length.max()).any():
+        small &= np.arange(span) < (length - 2)[:, None]
+    return (change > 1e-9 * scale) & (np.count_nonzero(small, axis=1) > half)
+
+
+def _search_rows(t: np.ndarray, length: np.ndarray, value: np.ndarray) -> np.ndarray:
+    """Per row: the number of its ``length`` (increasing) times below ``value``."""
+    lo, hi = np.zeros_like(length), length.copy()
+    rows = np.arange(length.size)
+    while (lo < hi).any():
+        mid = (lo + hi) // 2
+        up = (lo < hi) & (t[rows, np.minimum(mid, t.shape[1] - 1)] < value)
+        lo = np.where(up, mid + 1, lo)
+        hi = np.where((lo < hi) & ~up, mid, hi)
+    return lo
+
+
+def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
+                  ) -> tuple[Batch | None, list[Rejected | None]]:
+    """Check many curves and find their starts, as :func:`prepare` does for one.
+
+    Parameters
+    ----------
+    curves : sequence of (t_s, c)
+        Sample times [s] and DO readings [any unit] of each curve.
+    starts : sequence
+        Gas-on time [s] of each curve, or None to detect it.
+    stars : sequence
+        Saturation concentration [unit of the curve] of each, or None.
+
+    Returns
+    -------
+    (Batch or None, list)
+        The curves that passed, and per curve its :class:`Rejected` or None.
+    """
+    ts = [np.asarray(t, dtype=float).ravel() for t, _ in curves]
+    cs = [np.asarray(c, dtype=float).ravel() for _, c in curves]
+    for t, y in zip(ts, cs, strict=True):
+        if t.size != y.size:
+            raise InputError(f"{t.size} times but {y.size} DO values; every sample needs "
+                             "both", "curve")
+    total = len(ts)
+    length = np.array([t.size for t in ts], int)
+    width = int(length.max()) if total else 0
+    if (length == width).all():
+        t_all, c_all = np.stack(ts), np.stack(cs)
+    else:
+        t_all, c_all = np.zeros((total, width)), np.zeros((total, width))
+        for i in range(total):
+            t_all[i, :length[i]], c_all[i, :length[i]] = ts[i], cs[i]
+    with np.errstate(over="ignore", invalid="ignore"):
+        simple = np.isfinite(np.einsum("ij,ij->i", t_all, c_all)) & (length >= MIN_POINTS)
+    steps = np.diff(t_all, axis=1)
+    if width > 1:
+        back = steps <= 0
+        at = np.argmax(back, axis=1)
+        simple &= ~(back[np.arange(total), at] & (at < length - 1))
+    if simple.all():
+        simple = _clearly_rising(c_all, length)
+    elif simple.any():
+        rows = np.flatnonzero(simple)
+        simple[rows] = _clearly_rising(c_all[rows], length[rows])
+    start = np.zeros(total)
+    detected = np.zeros(total, bool)
+    warnings: list = [()] * total
+    rejected: list[Rejected | None] = [None] * total
+    for i in np.flatnonzero(~simple):
+        p = prepare(ts[i], cs[i], start_s=starts[i], c_star=stars[i])
+        if isinstance(p, Rejected):
+            rejected[i] = p
+            continue
+        length[i] = p.t.size
+        t_all[i], c_all[i] = 0.0, 0.0
+        t_all[i, :length[i]], c_all[i, :length[i]] = p.t, p.c
+        start[i], detected[i], warnings[i] = p.start, p.start_detected, p.warnings
+    rows = np.flatnonzero(simple)
+    given = np.array([starts[i] is not None for i in rows], bool)
+    if given.any():
+        at = rows[given]
+        start[at] = [float(starts[i]) for i in at]
+        begin, end = t_all[at, 0], t_all[at, length[at] - 1]
+        with np.errstate(invalid="ignore"):
+            outside = ~(np.isfinite(start[at]) & (begin - 1e-9 <= start[at]) & (start[at] < end))
+        if outside.any():
+            j = int(np.argmax(outside))
+            raise InputError(f"{start[at[j]]:g} s is outside the record, which runs from "
+                             f"{begin[j]:g} s to {end[j]:g} s", "start_s", starts[at[j]])
+    if (~given).any():
+        found = rows[~given]
+        start[found] = detect_starts(t_all[found], c_all[found], length[found])
+        detected[found] = True
+    first = _search_rows(t_all, length, start)
+    for i in rows[length[rows] - first[rows] < MIN_POINTS]:
+        rejected[i] = _too_short(int(length[i] - first[i]), "samples after the start")
+    keep = np.array([r is None for r in rejected], bool)
+    if not keep.any():
+        return None, rejected
+    index = np.flatnonzero(keep)
+    if not keep.all():
+        t_all, c_all, steps = t_all[index], c_all[index], steps[index]
+    spacing = _spacing(t_all, steps, length[index], simple[index])
+    return Batch(index=index, t=t_all, c=c_all, length=length[index], first=first[index],
+                 start=start[index], detected=detected[index], spacing=spacing,
+                 warnings=[warnings[i] for i in index]), rejected
+
+
+def _spacing(t: np.ndarray, steps: np.ndarray, length: np.ndarray, padded_ok: np.ndarray
+             ) -> np.ndarray:
+    """Time step of each evenly sampled row [s], nan for the others; ``steps`` are the
+    differences of ``t`` as padded, valid for rows in ``padded_ok`` (the others were
+    compacted since)."""
+    step = (t[np.arange(length.size), length - 1] - t[:, 0]) / (length - 1)
+    low, high = np.full(length.size, np.inf), np.full(length.size, -np.inf)
+    full = padded_ok & (length == t.shape[1])
+    if full.all():
+        low, high = steps.min(1), steps.max(1)
+    elif full.any():
+        low[full], high[full] = steps[full].min(1), steps[full].max(1)
+    for i in np.flatnonzero(~full):
+        d = np.diff(t[i, :length[i]])
+        low[i], high[i] = d.min(), d.max()
+    return np.where(high - low <= 1e-9 * step, step, np.nan)

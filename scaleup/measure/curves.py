@@ -47,9 +47,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from scaleup.errors import InputError
-from scaleup.measure import expfit
-from scaleup.measure.curve_checks import MIN_POINTS, Prepared, Rejected, detect_start, prepare
-from scaleup.measure.loglinear import goodness, log_linear_batch, t975
+from scaleup.measure.curve_checks import MIN_POINTS, Rejected, detect_start, prepare_batch
+from scaleup.measure.lagbias import lag_bias_rows
+from scaleup.measure.loglinear import log_linear_batch
+from scaleup.measure.windowfit import fit_windows
 
 __all__ = ["DEFAULT_WINDOW", "CURVE_METHODS", "CurveRejected", "Rejected", "CurveFit",
            "CurveAnalysis", "ProbeStep", "analyse_curve", "analyse_curves", "curve_methods",
@@ -63,7 +64,7 @@ CURVE_METHODS = {
     "log-linear": "straight line through ln(C_inf - C) against time, C_inf taken as C* if "
                   "given, else the mean of the last samples; no lag correction",
 }
-_CHUNK_CURVES = 64  # curves per progress step in a batch
+_BLOCK_SAMPLES = 2_000_000  # samples per progress step in a batch (at least one curve)
 
 
 class CurveRejected(InputError):
@@ -262,13 +263,19 @@ def analyse_curves(curves: Sequence[tuple[np.ndarray, np.ndarray]], *,
             raise InputError(f"{tau!r} is not a probe time constant; expected 0 s or more",
                              "tau_p_s", tau)
     out: list[CurveAnalysis | Rejected] = []
-    for first in range(0, total, _CHUNK_CURVES):
-        chunk = range(first, min(first + _CHUNK_CURVES, total))
-        prepared = [prepare(*curves[i], start_s=starts[i], c_star=stars[i]) for i in chunk]
-        out.extend(_analyse_prepared(prepared, [float(taus[i]) for i in chunk], lo, hi,
-                                     method, [stars[i] for i in chunk]))
+    first = 0
+    while first < total:
+        stop, samples = first, 0
+        while stop < total and (stop == first or samples < _BLOCK_SAMPLES):
+            samples += len(curves[stop][0])
+            stop += 1
+        block = range(first, stop)
+        out.extend(_analyse_block([curves[i] for i in block], [float(taus[i]) for i in block],
+                                  lo, hi, method, [starts[i] for i in block],
+                                  [stars[i] for i in block]))
+        first = stop
         if progress is not None:
-            progress(chunk.stop, total)
+            progress(stop, total)
     return out
 
 
@@ -293,181 +300,99 @@ def _per_curve(value, total: int, name: str) -> list:
     return values
 
 
-def _pad(items: list[Prepared], taus: list[float]):
-    """Pad curves into (m, n) arrays of time since start and data; each row's usable samples
-    run from ``start`` to ``length`` (the samples before the start are kept for nothing)."""
-    n = max(len(p.t) for p in items)
-    m = len(items)
-    t = np.zeros((m, n))
-    c = np.zeros((m, n))
-    start = np.zeros(m, int)
-    length = np.zeros(m, int)
-    for i, p in enumerate(items):
-        size = len(p.t)
-        t[i, :size] = p.t - p.start
-        c[i, :size] = p.c
-        start[i] = int(np.searchsorted(p.t, p.start, "left"))
-        length[i] = size
-    usable = (np.arange(n) >= start[:, None]) & (np.arange(n) < length[:, None])
-    return t, c, usable, np.array(taus), start, length
-
-
-def _analyse_prepared(prepared: list[Prepared | Rejected], taus: list[float], lo: float,
-                      hi: float, method: str, stars: list) -> list[CurveAnalysis | Rejected]:
-    results: list[CurveAnalysis | Rejected] = list(prepared)
-    idx = [i for i, p in enumerate(prepared) if isinstance(p, Prepared)]
-    if not idx:
+def _analyse_block(curves: list, taus: list[float], lo: float, hi: float, method: str,
+                   starts: list, stars: list) -> list[CurveAnalysis | Rejected]:
+    batch, rejected = prepare_batch(curves, starts, stars)
+    results: list[CurveAnalysis | Rejected] = list(rejected)
+    if batch is None:
         return results
-    items = [prepared[i] for i in idx]
-    t, c, usable, tau, start, length = _pad(items, [taus[i] for i in idx])
-    nonlinear = _nonlinear(t, c, usable, tau, lo, hi, start, length)
-    loglin = log_linear_batch(t, c, usable, lo, hi, [stars[i] for i in idx], start, length)
-    for j, i in enumerate(idx):
-        p = items[j]
-        nl, nl_reason = nonlinear[j]
-        ll, ll_reason = loglin[j]
-        primary, reason = (nl, nl_reason) if method == "nonlinear" else (ll, ll_reason)
-        if primary is None:
-            results[i] = Rejected(reason[0], reason[1])
+    tau = np.array([taus[i] for i in batch.index])
+    nonlinear = fit_windows(batch, tau, (lo, hi))
+    loglin = log_linear_batch(batch, lo, hi, [stars[i] for i in batch.index])
+    fits = _nonlinear_fits(batch, tau, nonlinear, lo, hi)
+    loglins = _log_linear_fits(batch, loglin)
+    for j, i in enumerate(batch.index.tolist()):
+        nl, nl_reason, nl_warnings, bias = fits[j]
+        ll = loglins[j]
+        ll_reason = loglin.failed[j]
+        if method == "nonlinear" and nl is None:
+            results[i] = Rejected(*nl_reason)
             continue
-        warnings = list(p.warnings)
-        bias = None
-        if nl is not None:
-            fit, bias = _to_fit(nl, p), nl.get("bias")
-            warnings += nl["warnings"]
-        else:
-            fit = None
+        if method == "log-linear" and ll is None:
+            results[i] = Rejected(ll_reason, "log_linear_failed")
+            continue
+        warnings = [*batch.warnings[j], *nl_warnings]
+        if nl is None:
             warnings.append(f"nonlinear fit not available: {nl_reason[0]}")
-        llfit = _to_fit(ll, p) if ll is not None else None
         if ll is None:
-            warnings.append(f"log-linear method not available: {ll_reason[0]}")
-        results[i] = CurveAnalysis(method=method, nonlinear=fit, log_linear=llfit,
-                                   lag_bias=bias, start_detected=p.start_detected,
-                                   window=(lo, hi), warnings=tuple(warnings))
+            warnings.append(f"log-linear method not available: {ll_reason}")
+        results[i] = CurveAnalysis(method, nl, ll, bias, bool(batch.detected[j]), (lo, hi),
+                                   tuple(warnings))
     return results
 
 
-def _to_fit(d: dict, p: Prepared) -> CurveFit:
-    times = d["t"] + p.start
-    return CurveFit(
-        method=d["method"], kla_per_s=d["k"], kla_stderr_per_s=d["se"],
-        kla_ci95_per_s=d["ci"], c_inf=d["c_inf"], c_inf_stderr=d["c_inf_se"], c0=d["c0"],
-        c0_stderr=d["c0_se"], start_s=p.start, window_s=(float(times[0]), float(times[-1])),
-        tau_p_s=d["tau"], n_points=int(times.size), rmse=d["rmse"], r_squared=d["r2"],
-        durbin_watson=d["dw"], times_s=times, residuals=d["r"], covariance=d.get("cov"))
-
-
-class _Windows:
-    """Per-row sample windows [first, stop) of a padded batch, and fits on just those columns.
-
-    Each row is sorted in time and its usable samples run from ``start`` to ``length``, so a
-    window of the rise is an index interval; fits crop the columns to the union of the
-    intervals, which saves the work on samples no row uses.
-    """
-
-    def __init__(self, t, c, tau, start, length):
-        self.t, self.c, self.tau, self.start, self.length = t, c, tau, start, length
-        self.first = start.copy()
-        self.stop = length.copy()
-
-    def locate(self, k: np.ndarray, lo: float, hi: float) -> tuple[np.ndarray, np.ndarray]:
-        t_lo = expfit.time_at_fraction(k, self.tau, lo)
-        t_hi = expfit.time_at_fraction(k, self.tau, hi)
-        first, stop = self.first.copy(), self.stop.copy()
-        for i in range(self.t.shape[0]):
-            row = self.t[i, self.start[i]:self.length[i]]
-            first[i] = self.start[i] + np.searchsorted(row, t_lo[i], "left")
-            stop[i] = self.start[i] + np.searchsorted(row, t_hi[i], "right")
-        return first, stop
-
-    def arrays(self, rows: np.ndarray, data: np.ndarray | None = None):
-        """(t, c, mask) of ``rows`` cropped to the columns their windows use."""
-        a, b = int(self.first[rows].min()), int(self.stop[rows].max())
-        cols = np.arange(a, b)
-        mask = (cols >= self.first[rows, None]) & (cols < self.stop[rows, None])
-        c = self.c if data is None else data
-        return self.t[rows, a:b], c[rows, a:b], mask
-
-    def fit(self, rows: np.ndarray, tau, k0=None) -> expfit.BatchFit:
-        t, c, mask = self.arrays(rows)
-        return expfit.fit_batch(t, c, mask, tau, k0)
-
-
-def _nonlinear(t, c, usable, tau, lo, hi, start, length
-               ) -> list[tuple[dict | None, tuple[str, str] | None]]:
-    """The nonlinear fit of a padded batch, with the window found from the fit and iterated."""
-    m, n = t.shape
-    # a rough fit on every few samples only has to locate the window
-    every = max(1, n // 300)
-    fit = expfit.fit_batch(t[:, ::every], c[:, ::every], usable[:, ::every], tau)
-    alive = fit.converged.copy()
-    short = np.zeros(m, bool)
-    win = _Windows(t, c, tau, start, length)
-    fresh = np.ones(m, bool)  # rows not yet fitted on their full-resolution window
-    for _ in range(6):
-        first, stop = win.locate(fit.kla_per_s, lo, hi)
-        short |= alive & (stop - first < MIN_POINTS)
-        alive &= ~short
-        changed = alive & (fresh | (first != win.first) | (stop != win.stop))
-        if not changed.any():
-            break
-        win.first[changed], win.stop[changed] = first[changed], stop[changed]
-        rows = np.flatnonzero(changed)
-        refit = win.fit(rows, tau[rows], fit.kla_per_s[rows])
-        fit = _merge(fit, refit, rows)
-        alive[rows] &= refit.converged
-        fresh[:] = False
-    bias = _lag_bias_batch(win, tau, fit.kla_per_s, alive)
-    ci_half = t975(fit.n_points - 3.0) * fit.kla_stderr_per_s
+def _nonlinear_fits(batch, tau, nl, lo: float, hi: float) -> list[tuple]:
+    """(CurveFit or None, (reason, code) or None, warnings, lag bias) per row."""
+    f = nl.fit
+    columns = [a.tolist() for a in (nl.status, f.kla_per_s, f.kla_stderr_per_s, nl.ci_half,
+                                     f.c_inf, f.c_inf_stderr, f.c0, f.c0_stderr, batch.start,
+                                     tau, f.n_points, nl.rmse, nl.r_squared,
+                                     nl.durbin_watson, nl.last_fraction, nl.bias,
+                                     nl.stop - nl.first)]
     out = []
-    for i in range(m):
-        if short[i]:
+    for j, (status, k, se, half, c_inf, c_inf_se, c0, c0_se, start, tau_j, n, rmse, r2, dw,
+            last, bias, size) in enumerate(zip(*columns, strict=True)):
+        if status == 1:
             out.append((None, (f"too few samples in the window {lo:g} to {hi:g} of the rise "
-                               f"({max(int(stop[i] - first[i]), 0)}; at least {MIN_POINTS} "
-                               "needed): widen the window or record more often", "too_short")))
+                               f"({max(size, 0)}; at least {MIN_POINTS} needed): widen the "
+                               "window or record more often", "too_short"), [], None))
             continue
-        k = float(fit.kla_per_s[i])
-        if not (alive[i] and np.isfinite(k) and k > 0 and np.isfinite(fit.ssr[i])):
+        if status == 2:
             out.append((None, ("the nonlinear fit did not converge; the curve may not be a "
                                "first-order rise (check the start time and the window)",
-                               "no_convergence")))
+                               "no_convergence"), [], None))
             continue
-        sel = slice(win.first[i], win.stop[i])
-        g = expfit.response(t[i, sel], k, tau[i])
-        d = goodness(t[i, sel], c[i, sel], fit.c_inf[i] - (fit.c_inf[i] - fit.c0[i]) * g)
-        d.update(method="nonlinear", k=k, se=float(fit.kla_stderr_per_s[i]),
-                 ci=(k - float(ci_half[i]), k + float(ci_half[i])), c_inf=float(fit.c_inf[i]),
-                 c_inf_se=float(fit.c_inf_stderr[i]), c0=float(fit.c0[i]),
-                 c0_se=float(fit.c0_stderr[i]), tau=float(tau[i]), cov=fit.cov[i].copy(),
-                 bias=None if np.isnan(bias[i]) else float(bias[i]))
-        d["warnings"] = _fit_warnings(d, 1.0 - float(g[-1]), hi)
-        out.append((d, None))
+        times = nl.times[j]
+        bias = None if bias != bias else bias  # nan: not computed
+        fit = CurveFit("nonlinear", k, se, (k - half, k + half), c_inf, c_inf_se, c0, c0_se,
+                       start, (float(times[0]), float(times[-1])), tau_j, n, rmse, r2, dw,
+                       times, nl.residuals[j], f.cov[j])
+        out.append((fit, None, _fit_warnings(fit, bias, last, hi), bias))
     return out
 
 
-def _merge(fit: expfit.BatchFit, refit: expfit.BatchFit, rows: np.ndarray) -> expfit.BatchFit:
-    merged = {}
-    for name in expfit.BatchFit.__dataclass_fields__:
-        arr = getattr(fit, name).copy()
-        arr[rows] = getattr(refit, name)
-        merged[name] = arr
-    return expfit.BatchFit(**merged)
+def _log_linear_fits(batch, ll) -> list[CurveFit | None]:
+    columns = [a.tolist() for a in (ll.kla, ll.se, ll.ci_half, ll.c_inf, ll.c0, batch.start,
+                                     ll.rmse, ll.r_squared, ll.durbin_watson)]
+    out: list[CurveFit | None] = []
+    nan = float("nan")
+    for j, (k, se, half, c_inf, c0, start, rmse, r2, dw) in enumerate(zip(*columns,
+                                                                          strict=True)):
+        if ll.failed[j] is not None:
+            out.append(None)
+            continue
+        times = ll.times[j]
+        out.append(CurveFit("log-linear", k, se, (k - half, k + half), c_inf, nan, c0, nan,
+                            start, (float(times[0]), float(times[-1])), 0.0, int(times.size),
+                            rmse, r2, dw, times, ll.residuals[j]))
+    return out
 
 
-def _fit_warnings(d: dict, last_fraction: float, hi: float) -> list[str]:
+def _fit_warnings(fit: CurveFit, bias: float | None, last_fraction: float,
+                  hi: float) -> list[str]:
     out = []
-    k, tau = d["k"], d["tau"]
-    if d["se"] > 0.25 * k:
-        out.append(f"kLa is poorly determined: standard error {100 * d['se'] / k:.0f} % of "
+    k, tau, se = fit.kla_per_s, fit.tau_p_s, fit.kla_stderr_per_s
+    if se > 0.25 * k:
+        out.append(f"kLa is poorly determined: standard error {100 * se / k:.0f} % of "
                    "the estimate")
     if last_fraction < min(hi, 0.9) - 1e-9:
         out.append(f"the data end at {100 * last_fraction:.0f} % of the rise: C_inf is "
                    "extrapolated and kLa is less certain; record until the signal levels off")
-    if np.isfinite(d["dw"]) and d["dw"] < 1.0 and d["rmse"] > 1e-9 * abs(d["c_inf"] - d["c0"]):
-        out.append(f"the residuals are strongly correlated (Durbin-Watson {d['dw']:.2f}): the "
+    dw = fit.durbin_watson
+    if np.isfinite(dw) and dw < 1.0 and fit.rmse > 1e-9 * abs(fit.c_inf - fit.c0):
+        out.append(f"the residuals are strongly correlated (Durbin-Watson {dw:.2f}): the "
                    "model does not follow the curve closely (probe lag, drift, a wrong start) "
                    "and the stated interval is too narrow")
-    bias = d["bias"]
     if bias is not None and abs(bias) > LAG_BIAS_WARNING:
         out.append(f"probe lag: kLa*tau_p = {k * tau:.2f}; a fit without the lag correction "
                    f"would read {100 * abs(bias):.0f} % {'low' if bias < 0 else 'high'} on "
@@ -476,20 +401,6 @@ def _fit_warnings(d: dict, last_fraction: float, hi: float) -> list[str]:
         out.append(f"the probe is slow for this kLa (kLa*tau_p = {k * tau:.2f} > 0.5): the "
                    "estimate rests on the lag model; a faster probe would give a firmer one")
     return out
-
-
-def _lag_bias_batch(win: _Windows, tau, kla, alive) -> np.ndarray:
-    """Relative error of an ideal-probe fit to the noise-free lagged curve on the same samples."""
-    bias = np.full(tau.shape[0], np.nan)
-    rows = np.flatnonzero((tau > 0) & alive & (win.stop - win.first >= 4))
-    if rows.size == 0:
-        return bias
-    k = kla[rows]
-    t, _, mask = win.arrays(rows)
-    clean = 1.0 - expfit.row_response(t, k, tau[rows])
-    plain = expfit.fit_batch(t, clean, mask, 0.0, k)
-    bias[rows] = np.where(plain.converged, plain.kla_per_s / k - 1.0, np.nan)
-    return bias
 
 
 def lag_bias(kla_per_s: float, tau_p_s: float, t_s: np.ndarray) -> float:
@@ -523,11 +434,11 @@ def lag_bias(kla_per_s: float, tau_p_s: float, t_s: np.ndarray) -> float:
     >>> round(lag_bias(0.02, 8.0, np.linspace(0.0, 500.0, 2001)), 4)
     -0.0713
     """
-    t = np.asarray(t_s, dtype=float)[None, :]
-    one = np.array([0]), np.array([t.shape[1]])
-    win = _Windows(t, np.zeros_like(t), np.array([float(tau_p_s)]), *one)
-    return float(_lag_bias_batch(win, win.tau, np.array([float(kla_per_s)]),
-                                 np.array([True]))[0])
+    t = np.asarray(t_s, dtype=float).ravel()
+    if not (tau_p_s > 0 and t.size >= 4):
+        return float("nan")
+    return float(lag_bias_rows(t[None, :], np.array([float(kla_per_s)]),
+                               np.array([float(tau_p_s)]))[0])
 
 
 def fit_probe_step(t_s: Sequence[float] | np.ndarray, c: Sequence[float] | np.ndarray, *,

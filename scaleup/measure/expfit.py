@@ -136,8 +136,15 @@ def time_at_fraction(kla: np.ndarray, tau_p: np.ndarray, fraction: float) -> np.
     >>> round(float(time_at_fraction(np.array([0.1]), np.array([10.0]), 0.5)[0]), 6)
     16.783470
     """
-    a = np.asarray(kla, dtype=float)
-    tau = np.asarray(tau_p, dtype=float)
+    return _time_at_fraction(np.asarray(kla, dtype=float), np.asarray(tau_p, dtype=float),
+                             fraction)
+
+
+def _time_at_fraction(a: np.ndarray, tau: np.ndarray, fraction: float,
+                      guess: np.ndarray | None = None) -> np.ndarray:
+    """:func:`time_at_fraction`, Newton's method started from ``guess`` where given (a root
+    nearby, e.g. for a kLa a little different): from below the root the first step lands
+    beyond it, and from there the iterates fall onto it as from the union bound."""
     if not 0.0 < fraction < 1.0:
         return np.full(a.shape, 0.0 if fraction <= 0 else np.inf)
     log_target = np.log1p(-fraction)
@@ -148,6 +155,8 @@ def time_at_fraction(kla: np.ndarray, tau_p: np.ndarray, fraction: float) -> np.
     a, b = a[lag], 1.0 / tau[lag]
     s, f = np.minimum(a, b), np.maximum(a, b)
     t = (1.0 / a + 1.0 / b) * np.log(2.0 / (1.0 - fraction))
+    if guess is not None:
+        t = np.where(np.isfinite(guess[lag]) & (guess[lag] > 0), guess[lag], t)
     for _ in range(60):
         x = (f - s) * t
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -250,8 +259,11 @@ class _Chunk:
 
     ``work[:, j, :]`` holds e = exp(-k t), t e, the mask, the centred data and
     f = exp(-t/tau_p); one batched matrix product of its first two rows with all five gives
-    every sum an iteration needs.
+    every sum an iteration needs. The sums that do not depend on kLa (``n``, ``s_c``, ``s_cc``,
+    ``f1``, ``f2``, ``fc``: count, data, data squared, f, f squared, f times data over the mask)
+    are indexed by the chunk's rows; the work buffer holds only the rows in ``held``.
     """
+
 
     def __init__(self, t, c, mask, tau):
         # masked samples get t = 0 (a fast, finite exponential) and are zeroed by the mask
@@ -261,12 +273,23 @@ class _Chunk:
         c = c if self.full else np.where(mask, c, 0.0)
         self.shift = c.sum(1) / np.maximum(self.n, 1.0)
         r, n = t.shape
+        self.held = np.arange(r)
         self.work = np.empty((r, 5, n))
         self.work[:, 2] = mask
         np.subtract(c, self.shift[:, None], out=self.work[:, 3])
         if not self.full:
             self.work[:, 3] *= mask
+        self.s_c = np.zeros(r)  # the data are centred on their mean over the mask
         self.s_cc = np.einsum("ij,ij->i", self.work[:, 3], self.work[:, 3])
+        self._probe_basis(tau)
+        if not self.full:
+            self.work[:, 4] *= mask
+        self.f1 = self.work[:, 4].sum(1)
+        self.f2 = np.einsum("ij,ij->i", self.work[:, 4], self.work[:, 4])
+        self.fc = np.einsum("ij,ij->i", self.work[:, 4], self.work[:, 3])
+
+    def _probe_basis(self, tau: np.ndarray) -> None:
+        """Probe constants, and f = exp(-t/tau_p) into ``work[:, 4]`` (0 for an ideal probe)."""
         self.tau = tau
         self.lagged = tau > 0
         self.b = np.where(self.lagged, 1.0 / np.where(self.lagged, tau, 1.0), np.inf)
@@ -276,19 +299,15 @@ class _Chunk:
         elif self.lagged.any():
             rows = np.flatnonzero(self.lagged)
             self.work[rows, 4] = np.exp(-self.t[rows] * self.b[rows, None])
-        if not self.full:
-            self.work[:, 4] *= mask
-        self.f1 = self.work[:, 4].sum(1)
-        self.f2 = np.einsum("ij,ij->i", self.work[:, 4], self.work[:, 4])
-        self.fc = np.einsum("ij,ij->i", self.work[:, 4], self.work[:, 3])
 
     def keep(self, rows: np.ndarray) -> None:
-        """Drop the rows not listed (converged curves) so later iterations skip them."""
-        for name in ("t", "n", "shift", "work", "s_cc", "tau", "lagged", "b", "f1", "f2", "fc"):
+        """Keep only the listed rows of the work buffer (converged curves leave it)."""
+        self.held = self.held[rows]
+        for name in ("t", "work", "tau", "lagged", "b"):
             setattr(self, name, getattr(self, name)[rows])
 
     def sums(self, k: np.ndarray) -> np.ndarray:
-        """(Sg, Sgg, Scg, Sv, Svv, Sgv, Scv) for every row at kLa ``k``; v = dg/dk."""
+        """(Sg, Sgg, Scg, Sv, Svv, Sgv, Scv) for every held row at kLa ``k``; v = dg/dk."""
         work, t, b = self.work, self.t, self.b
         np.multiply(t, -k[:, None], out=work[:, 0])
         np.exp(work[:, 0], out=work[:, 0])
@@ -301,10 +320,15 @@ class _Chunk:
         out = np.array([e1, e2, ec, -t1, t2, -et, -tc])  # ideal probe: g = e, v = -t e
         near = self.lagged & (np.abs(1.0 - k / b) < _NEAR_SINGULAR)
         lag = self.lagged & ~near
+        if lag.all():
+            held = self.held
+            return _lag_sums(k, b, e1, e2, ec, t1, t2, tc, et, ef, tf, self.f1[held],
+                             self.f2[held], self.fc[held])
         if lag.any():
+            held = self.held[lag]
             out[:, lag] = _lag_sums(k[lag], b[lag], e1[lag], e2[lag], ec[lag], t1[lag],
                                     t2[lag], tc[lag], et[lag], ef[lag], tf[lag],
-                                    self.f1[lag], self.f2[lag], self.fc[lag])
+                                    self.f1[held], self.f2[held], self.fc[held])
         if near.any():
             g, v = _lag_stable(t[near], k[near, None], b[near, None])
             g *= work[near, 2]
@@ -352,22 +376,31 @@ def guess_kla(t: np.ndarray, c: np.ndarray, mask: np.ndarray) -> np.ndarray:
         80 % of the rise seen from the first to the last few samples; it reads low for a lagged
         probe and high when the curve stops short of its plateau, which the fit then corrects.
     """
-    t = np.where(mask, t, 0.0)
-    w = mask.astype(float)
-    cum_w = np.cumsum(w, 1)
-    first = (cum_w <= 5) & mask
-    last = ((cum_w[:, -1:] - cum_w) < 5) & mask
+    if mask.all():  # the usual case, without the masking
+        ends = min(5, t.shape[1])
+        c_first, c_last = c[:, :ends].mean(1), c[:, -ends:].mean(1)
+        span = t.max(1) - t.min(1)
+    else:
+        t = np.where(mask, t, 0.0)
+        cum_w = np.cumsum(mask, 1)
+        first = (cum_w <= 5) & mask
+        last = ((cum_w[:, -1:] - cum_w) < 5) & mask
+        with np.errstate(divide="ignore", invalid="ignore"):
+            c_first = np.where(first, c, 0.0).sum(1) / first.sum(1)
+            c_last = np.where(last, c, 0.0).sum(1) / last.sum(1)
+        c = np.where(mask, c, 0.0)
+        span = t.max(1) - np.where(mask, t, np.inf).min(1)
     with np.errstate(divide="ignore", invalid="ignore"):
-        c_first = np.where(first, c, 0.0).sum(1) / first.sum(1)
-        c_last = np.where(last, c, 0.0).sum(1) / last.sum(1)
-        frac = (np.where(mask, c, 0.0) - c_first[:, None]) / (c_last - c_first)[:, None]
-    sel = mask & (frac >= 0.1) & (frac <= 0.8)
+        frac = (c - c_first[:, None]) / (c_last - c_first)[:, None]
+    sel = (frac >= 0.1) & (frac <= 0.8)
+    if not mask.all():
+        sel &= mask
     y = np.log(np.clip(1.0 - np.where(sel, frac, 0.0), 1e-9, None))
     ws = sel.astype(float)
     n = ws.sum(1)
-    st, sy = (t * ws).sum(1), (y * ws).sum(1)
-    stt, sty = (t * t * ws).sum(1), (t * y * ws).sum(1)
-    span = t.max(1) - np.where(mask, t, np.inf).min(1)
+    tw = t * ws
+    st, sy = tw.sum(1), np.einsum("ij,ij->i", y, ws)
+    stt, sty = np.einsum("ij,ij->i", tw, t), np.einsum("ij,ij->i", tw, y)
     with np.errstate(divide="ignore", invalid="ignore"):
         slope = (n * sty - st * sy) / (n * stt - st * st)
         fallback = 3.0 / span
@@ -420,6 +453,12 @@ def fit_batch(t: np.ndarray, c: np.ndarray, mask: np.ndarray, tau_p: np.ndarray 
     t = np.asarray(t, dtype=float)
     c = np.asarray(c, dtype=float)
     mask = np.asarray(mask, dtype=bool) & np.isfinite(t) & np.isfinite(c)
+    return _fit_rows(t, c, mask, tau_p, kla_guess, max_iter, rtol)
+
+
+def _fit_rows(t: np.ndarray, c: np.ndarray, mask: np.ndarray, tau_p, kla_guess=None,
+              max_iter: int = 60, rtol: float = 1e-9) -> BatchFit:
+    """:func:`fit_batch` on float arrays whose masked samples are known to be finite."""
     m, n = t.shape
     tau = np.broadcast_to(np.asarray(tau_p, dtype=float), (m,))
     stride = max(1, n // 256)  # a starting value needs no more than a few hundred samples
@@ -437,60 +476,92 @@ def fit_batch(t: np.ndarray, c: np.ndarray, mask: np.ndarray, tau_p: np.ndarray 
                       for f in BatchFit.__dataclass_fields__))
 
 
-def _fit_chunk(ch: _Chunk, k: np.ndarray, max_iter: int, rtol: float) -> BatchFit:
-    m = k.size
-    n, s_cc, shift = ch.n, ch.s_cc, ch.shift
-    k_best = k.copy()
-    ssr_best = np.full(m, np.inf)
-    step = np.zeros(m)
-    best = np.zeros((7, m))
-    lin_best = np.zeros((2, m))
-    active = np.ones(m, bool)
-    converged = np.zeros(m, bool)
-    iterations = np.zeros(m, int)
-    floor = 1e-12 * s_cc + 1e-300  # rounding floor of an SSR computed from these sums
-    held = np.arange(m)  # chunk rows still in the work buffer
-    for _ in range(max_iter):
-        moving = active[held]
-        if not moving.any():
-            break
-        if moving.sum() < 0.6 * held.size:
-            ch.keep(np.flatnonzero(moving))
-            held = held[moving]
-            moving = np.ones(held.size, bool)
-        rows = held[moving]
-        iterations[rows] += 1
-        sums = ch.sums(k[held])[:, moving]
+class _Steps:
+    """Gauss-Newton bookkeeping for ``m`` separable fits: the best point so far, the step
+    and whether each fit is still going.
+
+    Each step is Kaufman's Gauss-Newton step on the variable-projection functional; a step
+    that raises the residual sum of squares (beyond its rounding floor) is halved, and kLa is
+    kept positive.
+    """
+
+    def __init__(self, k: np.ndarray, max_iter: int, rtol: float):
+        m = k.size
+        self.k = k
+        self.k_best = k.copy()
+        self.ssr_best = np.full(m, np.inf)
+        self.step = np.zeros(m)
+        self.best = np.zeros((7, m))
+        self.lin_best = np.zeros((2, m))
+        self.active = np.ones(m, bool)
+        self.converged = np.zeros(m, bool)
+        self.iterations = np.zeros(m, int)
+        self.since = np.zeros(m, int)  # iterations since the last restart
+        self.max_iter, self.rtol = max_iter, rtol
+
+    def restart(self, rows: np.ndarray) -> None:
+        """Fit ``rows`` afresh (a new window) from their best kLa."""
+        self.converged[rows], self.active[rows] = False, True
+        self.ssr_best[rows], self.k[rows], self.since[rows] = np.inf, self.k_best[rows], 0
+
+    def update(self, rows: np.ndarray, sums: np.ndarray, n: np.ndarray, s_c: np.ndarray,
+               s_cc: np.ndarray) -> np.ndarray:
+        """One step for ``rows`` from their sums at k and their window's count, data sum and
+        sum of squares (data centred on ``shift``); returns the rows that converged."""
+        self.iterations[rows] += 1
+        self.since[rows] += 1
         s_g, s_gg, s_cg, s_v, s_vv, s_gv, s_cv = sums
-        nn = n[rows]
-        det = nn * s_gg - s_g * s_g
+        det = n * s_gg - s_g * s_g
         with np.errstate(divide="ignore", invalid="ignore"):
-            # the centred data sum to zero, so the normal equations lose their s_c terms
-            alpha = -s_g * s_cg / det
-            beta = nn * s_cg / det
-            ssr = s_cc[rows] - beta * s_cg
-        better = np.isfinite(ssr) & (ssr <= ssr_best[rows] + floor[rows])
+            alpha = (s_gg * s_c - s_g * s_cg) / det
+            beta = (n * s_cg - s_g * s_c) / det
+            ssr = s_cc - alpha * s_c - beta * s_cg
+        floor = 1e-12 * s_cc + 1e-300  # rounding floor of an SSR computed from these sums
+        better = np.isfinite(ssr) & (ssr <= self.ssr_best[rows] + floor)
         acc = rows[better]
-        k_best[acc] = k[acc]
-        ssr_best[acc] = ssr[better]
-        best[:, acc] = sums[:, better]
-        lin_best[:, acc] = alpha[better], beta[better]
+        self.k_best[acc] = self.k[acc]
+        self.ssr_best[acc] = ssr[better]
+        self.best[:, acc] = sums[:, better]
+        self.lin_best[:, acc] = alpha[better], beta[better]
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             grad = s_cv - alpha * s_v - beta * s_gv
-            proj = s_vv - (s_gg * s_v**2 - 2 * s_g * s_v * s_gv + nn * s_gv**2) / det
+            proj = s_vv - (s_gg * s_v**2 - 2 * s_g * s_v * s_gv + n * s_gv**2) / det
             gn = grad / (beta * proj)
         gn = np.where(np.isfinite(gn), gn, 0.0)
-        new_step = np.where(better, gn, step[rows] / 2.0)
-        base = k_best[rows]
+        new_step = np.where(better, gn, self.step[rows] / 2.0)
+        base = self.k_best[rows]
         # keep kLa positive and move at most tenfold per iteration
         trial = np.clip(base + new_step, base / 10.0, base * 10.0)
         new_step = trial - base
-        done = np.abs(new_step) <= rtol * base
-        converged[rows[done]] = True
-        active[rows[done]] = False
-        step[rows] = new_step
-        k[rows] = trial
-    return _statistics(n, shift, k_best, ssr_best, best, lin_best, iterations, converged)
+        done = np.abs(new_step) <= self.rtol * base
+        self.converged[rows[done]] = True
+        self.active[rows[done]] = False
+        self.step[rows] = new_step
+        self.k[rows] = trial
+        self.active[rows[self.since[rows] >= self.max_iter]] = False
+        return rows[done]
+
+    def result(self, n: np.ndarray, shift: np.ndarray) -> BatchFit:
+        """Estimates and covariances of every fit (``shift`` added back to the data)."""
+        return _statistics(n, shift, self.k_best, self.ssr_best, self.best, self.lin_best,
+                           self.iterations, self.converged)
+
+
+def _fit_chunk(ch: _Chunk, k: np.ndarray, max_iter: int, rtol: float) -> BatchFit:
+    """Gauss-Newton iterations on one chunk; rows leave the work buffer as they converge, or
+    when ``max_iter`` iterations have not been enough."""
+    steps = _Steps(k, max_iter, rtol)
+    while True:
+        moving = steps.active[ch.held]
+        if not moving.any():
+            break
+        if moving.sum() < 0.6 * ch.held.size:
+            ch.keep(np.flatnonzero(moving))
+            moving = np.ones(ch.held.size, bool)
+        rows = ch.held[moving]
+        steps.update(rows, ch.sums(steps.k[ch.held])[:, moving], ch.n[rows], ch.s_c[rows],
+                     ch.s_cc[rows])
+    return steps.result(ch.n, ch.shift)
 
 
 def _statistics(n, shift, k_best, ssr_best, best, lin_best, iterations, converged

@@ -1,4 +1,4 @@
-"""The log-linear method on a batch of curves, and the goodness-of-fit figures both methods share.
+"""The log-linear method on a batch of curves.
 
 The classic spreadsheet method: with C_inf taken as known, ln(C_inf - C) falls linearly with
 time at slope -kLa; an ordinary least-squares line through the samples inside the window of
@@ -9,7 +9,11 @@ compared with earlier practice.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
+
+from scaleup.measure.curve_checks import row_means
 
 
 def t975(dof: np.ndarray) -> np.ndarray:
@@ -31,103 +35,180 @@ def t975(dof: np.ndarray) -> np.ndarray:
         return np.where(dof > 0, student_t.ppf(0.975, np.maximum(dof, 1)), np.nan)
 
 
-def goodness(t_row: np.ndarray, c_row: np.ndarray, model_row: np.ndarray) -> dict:
-    """Residuals, residual standard error, R^2 and Durbin-Watson of one fit.
+@dataclass(eq=False)
+class LogLinearFits:
+    """The log-linear method on every row of a batch (arrays of shape ``(m,)``).
 
-    Parameters
-    ----------
-    t_row : array
-        Sample times [s].
-    c_row : array
-        Readings [any unit].
-    model_row : array
-        Fitted values [unit of ``c_row``].
-
-    Returns
-    -------
-    dict
-        t, r (residuals), rmse (residual standard error with 3 parameters), r2, dw.
+    ``failed`` holds the reason (None where it worked); concentrations are in the unit of the
+    data; ``times`` [s] and ``residuals`` hold one array per row (the samples used).
     """
-    r = c_row - model_row
-    ssr = float(r @ r)
-    sst = float(((c_row - c_row.mean()) ** 2).sum())
-    dof = max(r.size - 3, 1)
-    dw = float((np.diff(r) ** 2).sum() / ssr) if ssr > 0 else float("nan")
-    return {"t": t_row, "r": r, "rmse": float(np.sqrt(ssr / dof)),
-            "r2": 1.0 - ssr / sst if sst > 0 else float("nan"), "dw": dw}
+
+    failed: list
+    kla: np.ndarray
+    se: np.ndarray
+    ci_half: np.ndarray
+    c_inf: np.ndarray
+    c0: np.ndarray
+    rmse: np.ndarray
+    r_squared: np.ndarray
+    durbin_watson: np.ndarray
+    times: list
+    residuals: list
 
 
-def log_linear_batch(t: np.ndarray, c: np.ndarray, usable: np.ndarray, lo: float, hi: float,
-                     stars: list, start: np.ndarray, length: np.ndarray
-                     ) -> list[tuple[dict | None, tuple | None]]:
+def _segment_sums(values: np.ndarray, offsets: np.ndarray, counts: np.ndarray) -> np.ndarray:
+    """Sum of each run of ``values`` (runs start at ``offsets`` and hold ``counts``)."""
+    if values.size == 0:
+        return np.zeros(counts.size)
+    sums = np.add.reduceat(values, np.minimum(offsets, values.size - 1))
+    return np.where(counts > 0, sums, 0.0)
+
+
+def _levels(c: np.ndarray, start: np.ndarray, length: np.ndarray
+            ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Means of the first and of the last q = max(5, n/20) samples after each row's start,
+    and which rows have all those samples alike.
+
+    On a noise-free curve whose first or last samples are all alike, which samples lie
+    inside the window can turn on the last bit of these means; such rows get them from one
+    running sum, the order in which earlier versions added, so they select the same samples.
+    """
+    n_use = length - start
+    q = np.maximum(5, n_use // 20)
+    head = np.minimum(q, n_use)
+    tail = np.maximum(length - q, start)
+    first, first_spread = row_means(c, start, head)
+    last, last_spread = row_means(c, tail, length - tail)
+    scale = np.maximum(np.abs(first), np.abs(last))
+    alike = np.minimum(first_spread, last_spread) <= 1e-9 * scale
+    for i in np.flatnonzero(alike):
+        running = np.concatenate([[0.0], np.cumsum(c[i, start[i]:length[i]])])
+        first[i] = running[head[i]] / head[i]
+        last[i] = (running[-1] - running[tail[i] - start[i]]) / (length[i] - tail[i])
+    return first, last, alike
+
+
+def log_linear_batch(batch, lo: float, hi: float, stars: list) -> LogLinearFits:
     """The log-linear method on a padded batch (ordinary least squares on ln of the deficit).
 
     Parameters
     ----------
-    t : array (m, n)
-        Time since the start [s].
-    c : array (m, n)
-        DO readings [any unit].
-    usable : bool array (m, n)
-        Samples from each row's start to its end.
+    batch : Batch
+        Checked curves (:class:`scaleup.measure.curve_checks.Batch`): times [s] and readings
+        [any unit], with each row's start and length.
     lo, hi : float
         Fractions of the rise [-] (measured on the data from the first samples to C_inf).
     stars : list
-        C* per row [unit of ``c``] or None: C_inf is then the mean of the last 5 % of samples.
-    start, length : int arrays (m,)
-        Where each row's usable samples begin and end [sample index].
+        C* per row [unit of the data] or None: C_inf is then the mean of the last 5 % of
+        samples.
 
     Returns
     -------
-    list of (dict or None, (reason, code) or None)
+    LogLinearFits
         The fit figures of each row, or why it failed.
+
+    Notes
+    -----
+    The samples used are those after the start whose fraction of the rise lies in [lo, hi]
+    and whose deficit d = sign(rise) (C_inf - C) is positive; the fraction is 1 - d/|rise|,
+    so the test is one of bounds on C. The samples of a run of rows are gathered into one
+    array, every sum is a sum over each row's run of it, and the residual of the fitted curve
+    follows from that of the line: C - model = sign d expm1(-(ln d - line)).
     """
-    m = t.shape[0]
-    n_use = length - start
-    cw = np.where(usable, c, 0.0)
-    # means of the first and last q usable samples from one running sum per row
-    q = np.maximum(5, n_use // 20)
-    cum = np.concatenate([np.zeros((m, 1)), np.cumsum(cw, 1)], axis=1)
-    rows = np.arange(m)
-    head_end = np.minimum(start + q, length)
-    tail_start = np.maximum(length - q, start)
-    first = (cum[rows, head_end] - cum[rows, start]) / (head_end - start)
-    plateau = (cum[rows, length] - cum[rows, tail_start]) / (length - tail_start)
+    t, c, length = batch.t, batch.c, batch.length
+    m, width = t.shape
+    first, plateau, alike = _levels(c, batch.first, length)
     star = np.array([np.nan if s is None else float(s) for s in stars])
     c_inf = np.where(np.isfinite(star), star, plateau)
     rise = c_inf - first
-    with np.errstate(divide="ignore", invalid="ignore"):
-        frac = (cw - first[:, None]) / rise[:, None]
-        deficit = (c_inf[:, None] - cw) / np.sign(rise)[:, None]
-    sel = usable & (frac >= lo) & (frac <= hi) & (deficit > 0)
-    y = np.log(np.where(sel, deficit, 1.0))
-    w = sel.astype(float)
-    n = w.sum(1)
-    tw = t * w
-    st, sy, stt, sty = tw.sum(1), (y * w).sum(1), (tw * t).sum(1), (tw * y).sum(1)
+    sign = np.sign(rise)
+    # d in [|rise| (1 - hi), |rise| (1 - lo)] and d > 0, as bounds on C = C_inf - sign d
+    ends = np.stack([c_inf - rise * (1.0 - hi), c_inf - rise * (1.0 - lo)])
+    low, high = ends.min(0), ends.max(0)
+    with np.errstate(invalid="ignore"):
+        high = np.where(rise > 0, np.minimum(high, np.nextafter(c_inf, -np.inf)), high)
+        low = np.where(rise < 0, np.maximum(low, np.nextafter(c_inf, np.inf)), low)
+    out = {name: np.full(m, np.nan) for name in ("n", "slope", "icpt", "se", "rmse", "r2",
+                                                 "dw")}
+    times: list = []
+    residuals: list = []
+    rows_per_part = max(1, 400_000 // max(width, 1))
+    for i0 in range(0, m, rows_per_part):
+        part = slice(i0, min(i0 + rows_per_part, m))
+        _log_linear_part(t[part], c[part], batch, part, c_inf[part], sign[part], low[part],
+                         high[part], first[part], rise[part], lo, hi, alike[part], out,
+                         times, residuals)
+    n, slope, icpt = out["n"], out["slope"], out["icpt"]
+    works = (n >= 3) & np.isfinite(slope) & (slope < 0)
+    failed = [None if ok else (
+        f"only {int(count)} samples lie below C_inf = {level:.4g} inside the window"
+        if count < 3 else "ln(C_inf - C) does not fall with time")
+        for ok, count, level in zip(works.tolist(), n.tolist(), c_inf.tolist(),
+                                    strict=True)]
+    return LogLinearFits(failed=failed, kla=-slope, se=out["se"],
+                         ci_half=t975(n - 2.0) * out["se"], c_inf=c_inf,
+                         c0=c_inf - sign * np.exp(icpt), rmse=out["rmse"],
+                         r_squared=out["r2"], durbin_watson=out["dw"], times=times,
+                         residuals=residuals)
+
+
+def _log_linear_part(t, c, batch, part, c_inf, sign, low, high, first, rise, lo, hi,
+                     alike, out, times, residuals) -> None:
+    """The log-linear fits of the batch rows ``part`` (views ``t``, ``c``), into ``out``."""
+    r, width = t.shape
+    sel = (c >= low[:, None]) & (c <= high[:, None])
+    start, length = batch.first[part], batch.length[part]
+    if (start > 0).any() or (length < width).any():
+        cols = np.arange(width)
+        sel &= (cols >= start[:, None]) & (cols < length[:, None])
+    for i in np.flatnonzero(alike):
+        # the fraction of the rise exactly as earlier versions computed it
+        frac = (c[i] - first[i]) / rise[i]
+        cols = np.arange(width)
+        sel[i] = ((cols >= start[i]) & (cols < length[i]) & (frac >= lo) & (frac <= hi)
+                  & ((c_inf[i] - c[i]) / sign[i] > 0))
+    counts = np.count_nonzero(sel, axis=1)
+    at = np.flatnonzero(sel)
+    offsets = np.cumsum(counts) - counts
+    origin = batch.start[part]
+    tt = t.reshape(-1)[at]
+    if origin.any():
+        tt -= np.repeat(origin, counts)
+    # the deficit as (C_inf - C) / sign(rise)
+    d = (np.repeat(c_inf, counts) - c.reshape(-1)[at]) * np.repeat(sign, counts)
+    y = np.log(d)
+    n = counts.astype(float)
+    st, sy = _segment_sums(tt, offsets, counts), _segment_sums(y, offsets, counts)
+    stt, sty = _segment_sums(tt * tt, offsets, counts), _segment_sums(tt * y, offsets, counts)
     with np.errstate(divide="ignore", invalid="ignore"):
         sxx = stt - st * st / n
         slope = (sty - st * sy / n) / sxx
         icpt = (sy - slope * st) / n
-        resid = np.where(sel, y - icpt[:, None] - slope[:, None] * t, 0.0)
-        s2 = (resid * resid).sum(1) / (n - 2)
+        resid = y - np.repeat(icpt, counts) - np.repeat(slope, counts) * tt
+        s2 = _segment_sums(resid * resid, offsets, counts) / (n - 2)
         se = np.sqrt(s2 / sxx)
-    half = t975(n - 2.0) * se
-    out = []
-    for i in range(m):
-        if n[i] < 3 or not (np.isfinite(slope[i]) and slope[i] < 0):
-            why = (f"only {int(n[i])} samples lie below C_inf = {c_inf[i]:.4g} inside the window"
-                   if n[i] < 3 else "ln(C_inf - C) does not fall with time")
-            out.append((None, (why, "log_linear_failed")))
-            continue
-        k = float(-slope[i])
-        c0 = float(c_inf[i] - np.sign(rise[i]) * np.exp(icpt[i]))
-        s = sel[i]
-        model = c_inf[i] - (c_inf[i] - c0) * np.exp(-k * t[i, s])
-        d = goodness(t[i, s], c[i, s], model)
-        d.update(method="log-linear", k=k, se=float(se[i]),
-                 ci=(k - float(half[i]), k + float(half[i])),
-                 c_inf=float(c_inf[i]), c_inf_se=float("nan"), c0=c0, c0_se=float("nan"),
-                 tau=0.0)
-        out.append((d, None))
-    return out
+    # C - (C_inf - sign exp(icpt + slope t)) = sign (exp(y - resid) - d)
+    with np.errstate(over="ignore", invalid="ignore"):
+        model_resid = np.repeat(sign, counts) * d * np.expm1(-resid)
+    ssr = _segment_sums(model_resid * model_resid, offsets, counts)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        spread = d - np.repeat(_segment_sums(d, offsets, counts) / n, counts)
+    sst = _segment_sums(spread * spread, offsets, counts)
+    # squared steps, the one from a row's last sample to the next row's first set to zero
+    jumps = np.empty(model_resid.size)
+    np.subtract(model_resid[1:], model_resid[:-1], out=jumps[:-1])
+    jumps *= jumps
+    jumps[offsets[(counts > 0) & (offsets > 0)] - 1] = 0.0
+    jumps[-1:] = 0.0
+    dw_sum = _segment_sums(jumps, offsets, counts)
+    rows = np.arange(part.start, part.start + r)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        out["rmse"][rows] = np.sqrt(ssr / np.maximum(n - 3, 1))
+        out["r2"][rows] = np.where(sst > 0, 1.0 - ssr / sst, np.nan)
+        out["dw"][rows] = np.where(ssr > 0, dw_sum / ssr, np.nan)
+    out["n"][rows], out["slope"][rows], out["icpt"][rows], out["se"][rows] = n, slope, icpt, se
+    if origin.any():
+        tt += np.repeat(origin, counts)
+    ends = (offsets + counts).tolist()
+    times.extend(tt[i:j] for i, j in zip(offsets.tolist(), ends, strict=True))
+    residuals.extend(model_resid[i:j] for i, j in zip(offsets.tolist(), ends, strict=True))

@@ -1,0 +1,282 @@
+"""The nonlinear fit of a batch of curves, each on the window of the rise that its own fit puts
+it in, found for the whole batch at once; with the goodness of fit and the lag bias.
+
+The window of a curve is the run of samples whose fitted probe reading lies between two
+fractions of the rise. It depends on the fitted kLa, so each curve is fitted on the window of
+a rough fit, then on the window of that fit, and so on until the window stays put (at most
+six fits, the last one kept). The fits run on moments (:mod:`scaleup.measure.taylorfit`):
+one pass over a window's samples serves all its iterations, and a window that moves changes
+the moments only at its ends, so the whole iteration costs about one pass per curve. Curves
+are sorted by window before they are cut into chunks, so that each chunk's columns cover
+little more than its rows' windows.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from scaleup.measure import expfit, taylorfit
+from scaleup.measure.curve_checks import MIN_POINTS, Batch
+from scaleup.measure.lagbias import lag_bias_batch
+from scaleup.measure.loglinear import t975
+
+_MAX_FITS = 6  # fits per curve (each on the window of the one before); the last is kept
+_REACH = 8  # samples either side of a window edge looked at first when it moves
+_ROUGH_SAMPLES = 300  # samples per curve for the first, rough fit
+
+
+@dataclass(eq=False)
+class WindowFits:
+    """The nonlinear fit of every row of a :class:`Batch` (arrays of shape ``(m,)``).
+
+    ``status``: 0 fitted, 1 too few samples in the window, 2 no convergence. ``first`` and
+    ``stop`` are the window's sample indices [first, stop) in the batch arrays; ``times`` and
+    ``residuals`` hold one array per fitted row (None otherwise); ``bias`` is the lag bias
+    (nan when not computed); ``last_fraction`` the fraction of the rise at the last sample.
+    """
+
+    status: np.ndarray
+    fit: expfit.BatchFit
+    ci_half: np.ndarray
+    first: np.ndarray
+    stop: np.ndarray
+    rmse: np.ndarray
+    r_squared: np.ndarray
+    durbin_watson: np.ndarray
+    last_fraction: np.ndarray
+    bias: np.ndarray
+    times: list
+    residuals: list
+
+
+def _search(t, origin, pos, lo, hi, target, right: bool) -> np.ndarray:
+    """Per row ``pos`` of ``t`` (less ``origin``): the first column in [lo, hi) with
+    t >= target (t > target when ``right``), else hi; each row increases from lo to hi."""
+    lo, hi = lo.copy(), hi.copy()
+    last = t.shape[1] - 1
+    while True:
+        open_ = lo < hi
+        if not open_.any():
+            return lo
+        mid = (lo + hi) // 2
+        value = t[pos, np.minimum(mid, last)] - origin
+        up = open_ & ((value <= target) if right else (value < target))
+        lo = np.where(up, mid + 1, lo)
+        hi = np.where(open_ & ~up, mid, hi)
+
+
+def _search_near(t, origin, pos, lo, hi, target, right: bool, near) -> np.ndarray:
+    """:func:`_search`, looking first at the columns around ``near`` (a window edge moves by
+    a sample or two when kLa is refined), and over the whole range where the answer is not
+    among them."""
+    cols = near[:, None] + np.arange(-_REACH, _REACH)
+    inside = (cols >= lo[:, None]) & (cols < hi[:, None])
+    value = t[pos[:, None], np.clip(cols, 0, t.shape[1] - 1)] - origin[:, None]
+    below = inside & ((value <= target[:, None]) if right else (value < target[:, None]))
+    count = below.sum(1)
+    # the answer is among these columns when the first is below the target (or before lo)
+    # and the last is not (or at or past hi)
+    sure = (((cols[:, 0] < lo) | below[:, 0])
+            & ((cols[:, -1] >= hi) | (inside[:, -1] & ~below[:, -1])))
+    found = np.where(cols[:, 0] < lo, lo + count, near - _REACH + count)
+    if not sure.all():
+        other = ~sure
+        found[other] = _search(t, origin[other], pos[other], lo[other], hi[other],
+                               target[other], right)
+    return found
+
+
+def _rough(batch: Batch, tau: np.ndarray) -> expfit.BatchFit:
+    """A first fit of every row on about 300 of its samples after the start."""
+    every = np.maximum(1, batch.length // _ROUGH_SAMPLES)
+    width = int(np.max(-(-batch.length // every)))
+    if (every == every[0]).all():  # one stride for all: a strided view, not a gather
+        t = batch.t[:, ::every[0]][:, :width] - batch.start[:, None]
+        c = np.ascontiguousarray(batch.c[:, ::every[0]][:, :width])  # read often after
+        cols = every[0] * np.arange(width)
+    else:
+        cols = every[:, None] * np.arange(width)
+        rows = np.arange(cols.shape[0])[:, None]
+        at = np.minimum(cols, batch.length[:, None] - 1)
+        t, c = batch.t[rows, at] - batch.start[:, None], batch.c[rows, at]
+    usable = (cols >= batch.first[:, None]) & (cols < batch.length[:, None])
+    return expfit._fit_rows(t, c, usable, tau)  # the batch holds finite samples only
+
+
+class _Windows:
+    """Where each row's window lies for a kLa, and how many windows each has been fitted on."""
+
+    def __init__(self, batch: Batch, tau: np.ndarray, fractions: tuple[float, float]):
+        self.batch, self.tau, self.fractions = batch, tau, fractions
+        m = tau.size
+        self.fits = np.ones(m, int)
+        self.t_lo, self.t_hi = np.full(m, np.nan), np.full(m, np.nan)
+        self.short = {}  # row: the window, too short, that dropped it
+
+    def locate(self, rows, k, near=None) -> tuple[np.ndarray, np.ndarray]:
+        """Windows [first, stop) of kLa ``k`` (batch sample indices), searched first around
+        the windows ``near`` = (first, stop) where given."""
+        b = self.batch
+        tau = self.tau[rows]
+        lo, hi, origin = b.first[rows], b.length[rows], b.start[rows]
+        t_lo = expfit._time_at_fraction(k, tau, self.fractions[0], self.t_lo[rows])
+        t_hi = expfit._time_at_fraction(k, tau, self.fractions[1], self.t_hi[rows])
+        self.t_lo[rows], self.t_hi[rows] = t_lo, t_hi
+        if near is None:
+            return (_search(b.t, origin, rows, lo, hi, t_lo, False),
+                    _search(b.t, origin, rows, lo, hi, t_hi, True))
+        return (_search_near(b.t, origin, rows, lo, hi, t_lo, False, near[0]),
+                _search_near(b.t, origin, rows, lo, hi, t_hi, True, near[1]))
+
+    def follow(self, rows, k, first, stop, status) -> tuple:
+        """Windows for rows that converged on [first, stop): (moved, dropped, first, stop);
+        a row in too short a window is dropped with status 1, one fitted six times stays."""
+        moved, dropped = np.zeros(rows.size, bool), np.zeros(rows.size, bool)
+        new_first, new_stop = first.copy(), stop.copy()
+        more = self.fits[rows] < _MAX_FITS
+        if more.any():
+            f, s = self.locate(rows[more], k[more], (first[more], stop[more]))
+            short = s - f < MIN_POINTS
+            status[rows[more][short]] = 1
+            self.short.update(zip(rows[more][short].tolist(),
+                                  zip(f[short].tolist(), s[short].tolist(), strict=True),
+                                  strict=True))
+            dropped[more] = short
+            moved[more] = ~short & ((f != first[more]) | (s != stop[more]))
+            new_first[more], new_stop[more] = f, s
+            self.fits[rows[moved]] += 1
+        return moved, dropped, new_first, new_stop
+
+
+def _assign(target: expfit.BatchFit, rows: np.ndarray, part: expfit.BatchFit) -> None:
+    for name in expfit.BatchFit.__dataclass_fields__:
+        getattr(target, name)[rows] = getattr(part, name)
+
+
+def _plain_rows(batch, rows, k, first, stop, windows: _Windows, status,
+                fit: expfit.BatchFit) -> None:
+    """The window iteration of ``rows`` by one plain fit per window, from their current
+    window and kLa (kLa near 1/tau_p, where the moments would lose digits); results go
+    into ``fit``, ``k``, ``first``, ``stop`` and ``status``."""
+    current = rows
+    while current.size:
+        a, b = int(first[current].min()), int(stop[current].max())
+        cols = np.arange(a, b)
+        mask = (cols >= first[current, None]) & (cols < stop[current, None])
+        t = batch.t[current, a:b] - batch.start[current, None]
+        part = expfit.fit_batch(t, batch.c[current, a:b], mask, windows.tau[current],
+                                k[current])
+        _assign(fit, current, part)
+        k[current] = part.kla_per_s
+        status[current[~part.converged]] = 2
+        current = current[part.converged]
+        moved, _, first[current], stop[current] = windows.follow(
+            current, k[current], first[current], stop[current], status)
+        current = current[moved]
+
+
+class _Finish:
+    """Goodness of fit of the fitted rows on their windows, chunk by chunk."""
+
+    def __init__(self, m: int):
+        self.rmse, self.r2, self.dw, self.last = (np.full(m, np.nan) for _ in range(4))
+        self.times: list = [None] * m
+        self.residuals: list = [None] * m
+
+    def chunk(self, source, rows, a, b, fit, ex, tau) -> None:
+        t, c = source.crop(rows, a, b)
+        first, stop = ex.first[rows] - a, ex.stop[rows] - a
+        at = np.arange(rows.size)
+        resid = expfit.row_response(t, fit.kla_per_s[rows], tau[rows])
+        self.last[rows] = 1.0 - resid[at, stop - 1]
+        c_inf, c0 = fit.c_inf[rows], fit.c0[rows]
+        # C - (C_inf - (C_inf - C0) g), in place
+        np.multiply(resid, (c_inf - c0)[:, None], out=resid)
+        np.subtract(c_inf[:, None], resid, out=resid)
+        np.subtract(c, resid, out=resid)
+        w = b - a
+        cols = np.arange(w)
+        np.copyto(resid, 0.0, where=(cols < first[:, None]) | (cols >= stop[:, None]))
+        ssr = np.einsum("ij,ij->i", resid, resid)
+        steps = np.diff(resid, axis=1)
+        # the residuals, zero outside, jump from and to zero at the ends of each window
+        jumps = (np.where(first > 0, resid[at, first] ** 2, 0.0)
+                 + np.where(stop < w, resid[at, stop - 1] ** 2, 0.0))
+        n = ex.n[rows]
+        sst = ex.s_cc[rows] - ex.s_c[rows] ** 2 / n
+        with np.errstate(divide="ignore", invalid="ignore"):
+            self.rmse[rows] = np.sqrt(ssr / np.maximum(n - 3, 1))
+            self.r2[rows] = np.where(sst > 0, 1.0 - ssr / sst, np.nan)
+            self.dw[rows] = np.where(
+                ssr > 0, (np.einsum("ij,ij->i", steps, steps) - jumps) / ssr, np.nan)
+        origin = source.start[rows]
+        if origin.any():
+            t += origin[:, None]
+        for i, row in enumerate(rows.tolist()):
+            self.times[row] = t[i, first[i]:stop[i]]
+            self.residuals[row] = resid[i, first[i]:stop[i]]
+
+
+def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -> WindowFits:
+    """Fit every row of ``batch`` on the window ``fractions`` of its own fitted rise.
+
+    Parameters
+    ----------
+    batch : Batch
+        Curves that passed the checks (times [s], readings [any unit]).
+    tau : array (m,)
+        Probe time constant of each row [s].
+    fractions : (float, float)
+        Low and high fraction of the rise [-] bounding the window.
+
+    Returns
+    -------
+    WindowFits
+        Estimates, windows, goodness of fit and lag bias per row.
+
+    Notes
+    -----
+    The rough fit uses every n // 300-th sample of a row of n; a row whose rough fit does
+    not converge, or whose window holds fewer than five samples, gives no estimate.
+    """
+    m = batch.length.size
+    status = np.zeros(m, int)
+    rough = _rough(batch, tau)
+    k = rough.kla_per_s.copy()
+    status[~rough.converged] = 2
+    windows = _Windows(batch, tau, fractions)
+    first, stop = windows.locate(np.arange(m), k)
+    status[(status == 0) & (stop - first < MIN_POINTS)] = 1
+    source = taylorfit.Source(batch.t, batch.c, batch.start)
+    ex = taylorfit.Expansion(source, tau, first, stop)
+
+    def follow(rows, k_best):
+        return windows.follow(rows, k_best, ex.first[rows], ex.stop[rows], status)
+
+    steps, plain = taylorfit.fit(ex, k, np.flatnonzero(status == 0), relocate=follow)
+    fit = steps.result(ex.n, ex.shift)
+    first, stop = ex.first.copy(), ex.stop.copy()
+    if plain.size:
+        k = steps.k_best.copy()
+        _plain_rows(batch, plain, k, first, stop, windows, status, fit)
+        ex.move(plain, first[plain], stop[plain])
+    for row, (f, s) in windows.short.items():
+        first[row], stop[row] = f, s
+    k = fit.kla_per_s
+    status[(status == 0) & ~(fit.converged & np.isfinite(k) & (k > 0))] = 2
+    good = np.flatnonzero(status == 0)
+    done = _Finish(m)
+    for rows, a, b in taylorfit.chunks(first, stop, good):
+        done.chunk(source, rows, a, b, fit, ex, tau)
+    bias = np.full(m, np.nan)
+    lagged = good[(tau[good] > 0) & (stop[good] - first[good] >= 4)]
+    if lagged.size:
+        bias[lagged] = lag_bias_batch(batch.t, batch.start, batch.spacing, lagged, k[lagged],
+                                      tau, first, stop)
+    return WindowFits(status=status, fit=fit,
+                      ci_half=t975(fit.n_points - 3.0) * fit.kla_stderr_per_s,
+                      first=first, stop=stop, rmse=done.rmse, r_squared=done.r2,
+                      durbin_watson=done.dw, last_fraction=done.last, bias=bias,
+                      times=done.times, residuals=done.residuals)
