@@ -41,28 +41,31 @@ def validate(specs: tuple[F.Field, ...], values: dict[str, Any], *, partial: boo
     if unknown:
         raise InputError(f"unknown field(s) {', '.join(map(repr, unknown))}; known: "
                          f"{', '.join(s.label for s in specs)}")
-    given = {by_key[k].column: v for k, v in values.items()}
-    # a number keyed by its column name (tank_diameter_m) is already SI
-    si_columns = {k for k, v in values.items() if k in by_key and k == by_key[k].column
-                  and isinstance(v, (int, float)) and not isinstance(v, bool)}
+    given, si_columns = {}, set()
+    for k, v in values.items():
+        column = by_key[k].column
+        given[column] = v
+        # a number keyed by its column name (tank_diameter_m) is already SI
+        if k == column and isinstance(v, (int, float)) and not isinstance(v, bool):
+            si_columns.add(k)
     clean, problems = {}, []
     for spec in specs:
-        if spec.column not in given:
+        column = spec.column
+        if column not in given:
             if partial:
                 continue
             if spec.required:
                 problems.append(f"{spec.label}: is required")
                 continue
             if spec.default is not None:
-                clean[spec.column] = spec.default
+                clean[column] = spec.default
             continue
         try:
             if known is None:
-                clean[spec.column] = F.read(spec, given[spec.column], **context,
-                                            si=spec.column in si_columns)
+                clean[column] = F.read(spec, given[column], **context, si=column in si_columns)
             else:
-                clean[spec.column] = F.read_known(spec, given[spec.column], known, **context,
-                                                  si=spec.column in si_columns)
+                clean[column] = F.read_known(spec, given[column], known, context,
+                                             column in si_columns)
         except InputError as exc:
             problems.append(str(exc))
     if problems:

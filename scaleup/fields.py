@@ -118,21 +118,24 @@ _KEPT_KINDS = frozenset(units.KINDS) | {"gas_flow"}
 KNOWN_MAX = 100_000
 
 
-def read_known(field: Field, value: object, known: dict, **context) -> object:
-    """:func:`read`, with each distinct text of a quantity column read once per file.
+def read_known(field: Field, value: object, known: dict, context: dict, si: bool) -> object:
+    """``read(field, value, **context, si=si)``, with each distinct text of a quantity column
+    read once per file.
 
     ``known`` is kept by an importer for one file; a refused cell is not kept, so every
     row with it is refused with the same message. A gas flow is kept with the liquid
-    volume, temperature and pressure it was read at.
+    volume, temperature and pressure it was read at (the only kind that reads ``context``).
     """
-    if field.kind not in _KEPT_KINDS or not isinstance(value, str):
-        return read(field, value, **context)
-    key = ("cell", field.column, value) if field.kind != "gas_flow" else (
+    kind = field.kind
+    if kind not in _KEPT_KINDS or not isinstance(value, str):
+        return read(field, value, **context, si=si) if kind == "gas_flow" else \
+            read(field, value, si=si)
+    key = ("cell", field.column, value) if kind != "gas_flow" else (
         "cell", field.column, value, context.get("liquid_volume_m3"),
         context.get("temperature_k"), context.get("pressure_pa"))
     number = known.get(key)
     if number is None:
-        number = read(field, value, **context)
+        number = read(field, value, **context, si=si)
         if len(known) < KNOWN_MAX:
             known[key] = number
     return number

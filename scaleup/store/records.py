@@ -148,11 +148,21 @@ def _audit(conn, table, record_id, action, old, new, actor):
         (actor, table, record_id, action, _dump(old), _dump(new)))
 
 
+def _no_bytes(value: object) -> None:
+    """Blobs (curve samples) are not copied into the audit log."""
+    if isinstance(value, bytes):
+        return None
+    raise TypeError(f"Object of type {type(value).__name__} is not JSON serializable")
+
+
+# one encoder for every audit row (json.dumps would build one per call)
+_ENCODER = json.JSONEncoder(sort_keys=True, default=_no_bytes)
+
+
 def _dump(record: dict | None) -> str | None:
     if record is None:
         return None
-    return json.dumps({k: (None if isinstance(v, bytes) else v) for k, v in record.items()},
-                      sort_keys=True)
+    return _ENCODER.encode(record)
 
 
 def insert(conn: sqlite3.Connection, table: str, values: dict[str, Any], *,
@@ -187,17 +197,25 @@ def insert_many(conn: sqlite3.Connection, table: str, many: list[dict[str, Any]]
                 raise _too_large(values) from None
             ids.append(cur.lastrowid)
         if table in VERSIONED or table in CHILDREN:
-            stored: dict[int, dict] = {}
-            for start in range(0, len(ids), 500):
-                chunk = ids[start:start + 500]
-                for row in rows(conn, f"SELECT * FROM {table} WHERE id IN "
-                                      f"({', '.join('?' for _ in chunk)})", tuple(chunk)):
-                    stored[row["id"]] = row
+            stored = _stored(conn, table, ids)
             conn.executemany(
                 "INSERT INTO audit_log (actor, table_name, record_id, action, old_json, "
                 "new_json) VALUES (?, ?, ?, ?, ?, ?)",
                 [(actor, table, i, action, None, _dump(stored[i])) for i in ids])
     return ids
+
+
+def _stored(conn: sqlite3.Connection, table: str, ids: list[int]) -> dict[int, dict]:
+    """The stored rows of ``ids`` by id: one range read when they are consecutive (as new
+    rows under the write lock are), else in chunks."""
+    if ids and max(ids) - min(ids) == len(ids) - 1 and len(set(ids)) == len(ids):
+        found = rows(conn, f"SELECT * FROM {table} WHERE id BETWEEN ? AND ?",
+                     (min(ids), max(ids)))
+    else:
+        chunks = [tuple(ids[start:start + 500]) for start in range(0, len(ids), 500)]
+        found = [row for chunk in chunks for row in rows(
+            conn, f"SELECT * FROM {table} WHERE id IN ({', '.join('?' * len(chunk))})", chunk)]
+    return {row["id"]: row for row in found}
 
 
 def update(conn: sqlite3.Connection, table: str, record_id: int, changes: dict[str, Any], *,
