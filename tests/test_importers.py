@@ -129,6 +129,40 @@ def test_every_bad_row_is_listed_with_row_column_value(campaign, tmp_path):
     assert campaign.summary()["runs"] == 0
 
 
+def test_a_repeated_cell_is_read_once_but_refused_on_every_row(campaign, tmp_path):
+    # each distinct cell of a column is read once per file: a refusal is not remembered
+    out_of_range = GOOD_ROW.replace(",400,", ",9000,")
+    path = write(tmp_path / "runs.csv", "\n".join([
+        RUNS_HEADER, out_of_range, GOOD_ROW, out_of_range.replace("09:00", "09:01")]) + "\n")
+    problems = rejected(campaign, "runs", path)
+    assert [(p["row"], p["column"]) for p in problems] == [(2, "speed"), (4, "speed")]
+    assert problems[0]["reason"] == problems[1]["reason"]
+    assert "outside the accepted range" in problems[0]["reason"]
+
+
+def test_the_same_vvm_or_actual_flow_reads_per_vessel_and_temperature(campaign, tmp_path):
+    campaign.add_vessel({"name": "T-300", "tank diameter": "0.7 m", "liquid height": "0.8 m"},
+                        [{"impeller type": "disc-turbine", "impeller diameter": "0.23 m",
+                          "clearance": "0.23 m"}])
+    path = write(tmp_path / "runs.csv", "\n".join([
+        "vessel,medium,date,speed [rpm],gas flow,temperature [degC]",
+        "T-20,tap water,2026-02-03T09:00,400,1 vvm,30",
+        "T-300,tap water,2026-02-03T09:00,400,1 vvm,30",
+        "T-20,tap water,2026-02-03T10:00,400,10 L/min,20",
+        "T-20,tap water,2026-02-03T11:00,400,10 L/min,40"]) + "\n")
+    campaign.import_file("runs", path)
+    flows = [r["gas_flow_mol_s"] for r in campaign.runs()]
+    small, large = (campaign.run_conditions(r["id"]).point.liquid_volume
+                    for r in campaign.runs()[:2])
+    # 1 vvm: one normal liquid volume per minute (normal state 0 degC, 101.325 kPa)
+    assert flows[0] == pytest.approx(small / 60 * units.MOL_PER_NORMAL_M3, rel=1e-12)
+    assert flows[1] == pytest.approx(large / 60 * units.MOL_PER_NORMAL_M3, rel=1e-12)
+    # actual flow at the head pressure (0.2 barg) and each run's temperature: ideal gas
+    pressure = 0.2e5 + units.P_ATM
+    assert flows[2] == pytest.approx(0.010 / 60 * pressure / (units.R * 293.15), rel=1e-12)
+    assert flows[3] == pytest.approx(0.010 / 60 * pressure / (units.R * 313.15), rel=1e-12)
+
+
 def test_a_file_of_bad_rows_gets_a_bounded_report(campaign, tmp_path):
     from scaleup.store.tables import MAX_PROBLEMS
 

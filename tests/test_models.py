@@ -202,3 +202,33 @@ def test_stated_domain_open_bounds():
     result = domain.check({"vessel_volume_m3": [0.001, 5.2]})
     assert result.extrapolated.tolist() == [False, True]
     assert result.range_factor["vessel_volume_m3"][1] == pytest.approx(2.0)
+
+
+def test_runs_to_observations_a_column_at_a_time():
+    from scaleup.correlate.runs import kla_observations_from_columns, kla_observations_from_runs
+
+    rows = [
+        {"id": 1, "kla_per_s": 0.02, "gassed_power_per_volume_w_m3": 500.0,
+         "superficial_gas_velocity_m_s": 0.005, "kla_stderr_per_s": 0.001, "vessel": "A",
+         "coalescence": "coalescing", "viscosity_pa_s": 1e-3},
+        {"id": 2, "kla_per_s": None, "gassed_power_per_volume_w_m3": 0.0,
+         "superficial_gas_velocity_m_s": 0.005, "vessel": "A"},
+        {"id": 3, "kla_per_s": 0.05, "gassed_power_per_volume_w_m3": 2000.0,
+         "superficial_gas_velocity_m_s": 0.01, "kla_stderr_per_s": float("nan"),
+         "vessel": "B", "coalescence": "coalescing", "viscosity_pa_s": 1e-3},
+    ]
+    obs, skipped = kla_observations_from_runs(rows)
+    assert skipped == ["run 2: no kla_per_s or gassed_power_per_volume_w_m3"]
+    assert obs.run_id.tolist() == [1, 3] and obs.vessel.tolist() == ["A", "B"]
+    np.testing.assert_array_equal(obs.response, [0.02, 0.05])
+    np.testing.assert_array_equal(obs.response_stderr, [0.001, 0.0])  # NaN stderr: none
+    assert VISCOSITY in obs.variables and UNGASSED_PV not in obs.variables  # not in every run
+    assert obs.categories["coalescence"].tolist() == ["coalescing", "coalescing"]
+    columns = {k: [r.get(k) for r in rows] for k in {k for r in rows for k in r}}
+    again, skipped_again = kla_observations_from_columns(columns)
+    assert skipped_again == skipped
+    np.testing.assert_array_equal(again.variables[GASSED_PV], obs.variables[GASSED_PV])
+    with pytest.raises(InputError, match="2 run"):
+        kla_observations_from_runs(rows[1:2] * 2)
+    with pytest.raises(InputError, match="the selection is empty"):
+        kla_observations_from_columns({})

@@ -179,3 +179,27 @@ def test_constraint_error_names_the_column():
     exc = sqlite3.IntegrityError("CHECK constraint failed: speed_rps > 0 AND speed_rps <= 100")
     err = records.constraint_error(exc, "run", {"speed_rps": -1.0})
     assert "run.speed_rps" in str(err) and "-1.0" in str(err)
+
+
+def test_insert_many_audits_each_record_as_stored(campaign):
+    import json
+
+    vessel_id = campaign.vessel("T-20")["id"]
+    medium_id = campaign.medium("tap water")["id"]
+    base = {"vessel_id": vessel_id, "medium_id": medium_id, "run_at": "2026-03-01",
+            "speed_rps": 5.0, "gas_flow_mol_s": 0.01, "temperature_k": 303.15}
+    ids = records.insert_many(campaign.conn, "run", [
+        {**base, "speed_rps": 5.0 + i} for i in range(3)] + [{**base, "notes": "last"}],
+        actor="lab", action="import")
+    assert ids == sorted(ids) and len(set(ids)) == 4
+    for run_id in ids:
+        (entry,) = campaign.rows("SELECT * FROM audit_log WHERE table_name = 'run' AND "
+                                 "record_id = ?", (run_id,))
+        stored = records.get(campaign.conn, "run", run_id)
+        assert (entry["actor"], entry["action"], entry["old_json"]) == ("lab", "import", None)
+        assert json.loads(entry["new_json"]) == stored  # defaults (row version, times) too
+    # a refused record names its column, and nothing of the batch stays
+    before = campaign.summary()
+    with pytest.raises(InputError, match="speed_rps"):
+        records.insert_many(campaign.conn, "run", [base, {**base, "speed_rps": -1.0}])
+    assert campaign.summary() == before

@@ -123,3 +123,70 @@ def test_parse_never_crashes_on_junk(text):
     except InputError:
         return
     assert math.isfinite(value)
+
+
+# ---- learnt conversions: after pint has read a unit once, a multiply-add gives pint's number
+def _pint_si(value: float, unit: str, kind: str) -> float:
+    """The SI value straight from pint, without this module's shortcut."""
+    ureg = units.registry()
+    return float(ureg.Quantity(value, units._clean_unit(unit)).to(units.KINDS[kind].si)
+                 .magnitude)
+
+
+@given(st.floats(min_value=-1e6, max_value=1e6, allow_nan=False),
+       st.sampled_from([("rpm", "speed"), ("degC", "temperature"), ("degF", "temperature"),
+                        ("kPa", "pressure"), ("psi", "pressure"), ("1/h", "kla"),
+                        ("mmol/(L h)", "rate"), ("mPa s", "viscosity"), ("L", "volume"),
+                        ("kW/m3", "power_per_volume"), ("degR", "temperature")]))
+def test_learnt_conversion_equals_pint_to_the_last_bit(value, unit_kind):
+    unit, kind = unit_kind
+    expected = _pint_si(value, unit, kind)
+    for _ in range(2):  # the first reading goes through pint, the second through the rule
+        try:
+            got = units.parse(f"{value!r} {unit}", kind)
+        except InputError:  # outside what a kind allows is refused both times
+            continue
+        assert got == expected
+
+
+def test_gauge_pressure_and_gas_flows_after_the_first_reading():
+    for _ in range(2):
+        assert units.parse("0.5 barg", "pressure") == 0.5 * 1e5 + units.P_ATM
+        assert units.parse("30 NL/min", "gas_flow") == pytest.approx(
+            0.030 / 60 * units.MOL_PER_NORMAL_M3, rel=1e-15)
+        actual = units.parse("30 L/min", "gas_flow", temperature_k=303.15, pressure_pa=1.5e5)
+        assert actual == pytest.approx(0.030 / 60 * 1.5e5 / (units.R * 303.15), rel=1e-15)
+        with pytest.raises(InputError, match="actual volumetric flow"):
+            units.parse("30 L/min", "gas_flow")
+
+
+def test_logarithmic_units_are_read_by_pint_every_time():
+    # 10 dB is a factor 10 and 20 dB a factor 100 (IEC 60027-3 power level): not linear
+    assert units.parse("10 dB", "fraction") == pytest.approx(10.0)
+    assert units.parse("20 dB", "fraction") == pytest.approx(100.0)
+    assert not any("dB" in unit for unit, _ in units._LEARNT)
+
+
+def test_refusals_repeat_word_for_word_after_a_unit_was_learnt():
+    units.parse("1 kPa", "pressure")
+    messages = []
+    for _ in range(2):
+        with pytest.raises(InputError) as info:
+            units.parse("1e307 kPa", "pressure", "head pressure")  # 1e310 Pa overflows
+        messages.append(str(info.value))
+    assert messages[0] == messages[1] == 'head pressure: "1e307 kPa" is not a finite number'
+    for _ in range(2):
+        with pytest.raises(WrongDimension, match='"600 kg" is a mass'):
+            units.parse("600 kg", "speed")
+
+
+def test_convert_many_matches_convert_and_keeps_gaps():
+    values = [10.0, None, 2.5, 0.0]
+    assert units.convert_many(values, "speed") == [units.convert(v, "speed") if v is not None
+                                                   else None for v in values]
+    pressures = [151325.0, None, 1e5]
+    assert units.convert_many(pressures, "pressure", "barg") == [
+        units.convert(151325.0, "pressure", "barg"), None, units.convert(1e5, "pressure", "barg")]
+    assert units.convert_many([310.15], "temperature") == [pytest.approx(37.0)]
+    assert units.convert_many([None, None], "kla") == [None, None]
+    assert units.convert_many([], "kla") == []
