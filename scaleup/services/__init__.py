@@ -1,0 +1,1 @@
+"""The parts of the service layer, composed into :class:`scaleup.campaign.Campaign`."""
