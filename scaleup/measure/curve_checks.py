@@ -14,6 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from scaleup.errors import InputError
+from scaleup.measure.curve_start import detect_start, detect_starts, end_levels, noise_level
 
 MIN_POINTS = 5  # three parameters (kLa, C_inf, C0) plus two degrees of freedom for an error
 
@@ -38,157 +39,6 @@ class Prepared:
     noise: float
     direction: float
     warnings: tuple[str, ...]
-
-
-def noise_level(c: np.ndarray) -> float:
-    """Standard deviation of the sample noise, robust to the trend.
-
-    Parameters
-    ----------
-    c : array
-        Readings [any unit], finite, in time order.
-
-    Returns
-    -------
-    float
-        Noise standard deviation [unit of ``c``]; 0 for fewer than four samples.
-
-    Notes
-    -----
-    From the median absolute second difference: a smooth trend hardly contributes to it,
-    1.4826 turns a median absolute value into a standard deviation for normal noise, and the
-    square root of 6 undoes the differencing (1 - 2 + 1 has a sum of squares of 6).
-    """
-    if c.size < 4:
-        return 0.0
-    d2 = np.abs(c[2:] - 2.0 * c[1:-1] + c[:-2])
-    half = d2.size // 2
-    return float(1.4826 * np.partition(d2, half)[half] / np.sqrt(6.0))
-
-
-def _levels(c: np.ndarray) -> tuple[float, float, int]:
-    """Mean of the first and of the last 5 % of the samples (at least 3 each)."""
-    q = max(3, c.size // 20)
-    return float(c[:q].mean()), float(c[-q:].mean()), q
-
-
-def detect_start(t_s: np.ndarray, c: np.ndarray) -> float:
-    """Time the rise begins [s]: the last sample still at the initial level.
-
-    Parameters
-    ----------
-    t_s : array
-        Sample times [s], increasing, finite.
-    c : array
-        DO readings [any unit], finite.
-
-    Returns
-    -------
-    float
-        The start time [s]; ``t_s[0]`` when the data begin on the rise.
-
-    Notes
-    -----
-    The signal is smoothed with a centred moving average; the rise is where the smoothed
-    signal first passes 10 % of the total change (and five times its noise), and the start
-    is the last sample before that within 0.5 % of the change (and three times the noise) of
-    the initial level. A first-order probe starts its rise with zero slope, so the detected
-    start can be a little late; give the logged gas-on time for the lag model.
-
-    Examples
-    --------
-    >>> t = np.arange(0.0, 300.0)
-    >>> c = np.where(t < 40, 0.5, 8.0 - 7.5 * np.exp(-0.03 * (t - 40)))
-    >>> float(detect_start(t, c))
-    40.0
-    """
-    t = np.asarray(t_s, dtype=float)
-    y = np.asarray(c, dtype=float)
-    first, last, _ = _levels(y)
-    change = last - first
-    if change < 0:
-        y, first, change = -y, -first, -change
-    width = max(1, min(25, y.size // 50)) | 1
-    padded = np.pad(y, width // 2, mode="edge")
-    smooth = np.convolve(padded, np.ones(width) / width, mode="valid")
-    noise = noise_level(y) / np.sqrt(width)
-    base = float(y[:width].mean())  # the level before anything happened
-    above = smooth > base + max(0.1 * change, 5 * noise)
-    if not above.any():
-        return float(t[0])
-    rise = int(np.argmax(above))
-    flat = np.flatnonzero(smooth[:rise] <= base + max(0.005 * change, 3 * noise))
-    if flat.size == 0 or flat[-1] < width:
-        return float(t[0])
-    # the average leaves the level up to width/2 samples early: step on along the raw data
-    i = int(flat[-1])
-    level = base + max(0.005 * change, 3 * noise * np.sqrt(width))
-    while i + 1 < rise and y[i + 1] <= level:
-        i += 1
-    return float(t[i])
-
-
-def detect_starts(t_s: np.ndarray, c: np.ndarray, length: np.ndarray) -> np.ndarray:
-    """:func:`detect_start` for each row of a padded batch.
-
-    Parameters
-    ----------
-    t_s : array (m, n)
-        Sample times [s], increasing along each row for ``length`` samples.
-    c : array (m, n)
-        DO readings [any unit].
-    length : int array (m,)
-        Samples in each row [-].
-
-    Returns
-    -------
-    array (m,)
-        Start time of each row [s].
-    """
-    out = np.empty(length.size)
-    for size in np.unique(length):
-        rows = np.flatnonzero(length == size)
-        if rows.size < 4 or size < 8:
-            out[rows] = [detect_start(t_s[i, :size], c[i, :size]) for i in rows]
-        else:
-            out[rows] = _detect_rows(t_s[rows, :size], c[rows, :size])
-    return out
-
-
-def _detect_rows(t: np.ndarray, y: np.ndarray) -> np.ndarray:
-    """:func:`detect_start` on rows of equal length, step for step."""
-    from scipy.ndimage import uniform_filter1d
-
-    m, n = y.shape
-    q = max(3, n // 20)
-    first, last = y[:, :q].mean(1), y[:, -q:].mean(1)
-    change = last - first
-    falling = change < 0
-    if falling.any():
-        y = np.where(falling[:, None], -y, y)
-        change = np.abs(change)
-    width = max(1, min(25, n // 50)) | 1
-    smooth = uniform_filter1d(y, width, axis=1, mode="nearest")
-    d2 = np.abs(y[:, 2:] - 2.0 * y[:, 1:-1] + y[:, :-2])
-    half = d2.shape[1] // 2
-    noise = 1.4826 * np.partition(d2, half, axis=1)[:, half] / np.sqrt(6.0) / np.sqrt(width)
-    base = y[:, :width].mean(1)
-    cols = np.arange(n)
-    above = smooth > (base + np.maximum(0.1 * change, 5 * noise))[:, None]
-    rise = np.argmax(above, axis=1)
-    flat = ((smooth <= (base + np.maximum(0.005 * change, 3 * noise))[:, None])
-            & (cols < rise[:, None]))
-    last_flat = n - 1 - np.argmax(flat[:, ::-1], axis=1)
-    found = above.any(1) & flat.any(1) & (last_flat >= width)
-    out = t[:, 0].copy()
-    if found.any():
-        rows = np.flatnonzero(found)
-        level = base[rows] + np.maximum(0.005 * change[rows], 3 * noise[rows] * np.sqrt(width))
-        # the average leaves the level up to width/2 samples early: step on along the data
-        ahead = ((y[rows] > level[:, None]) | (cols >= rise[rows, None])) \
-            & (cols > last_flat[rows, None])
-        out[rows] = t[rows, np.argmax(ahead, axis=1) - 1]
-    return out
 
 
 def prepare(t_s, c, *, start_s: float | None = None,
@@ -233,7 +83,7 @@ def prepare(t_s, c, *, start_s: float | None = None,
     if t.size < MIN_POINTS:
         return _too_short(t.size, "usable samples")
     noise = noise_level(y)
-    first, last, _ = _levels(y)
+    first, last, _ = end_levels(y)
     change = last - first
     scale = max(abs(first), abs(last), 1e-300)
     if np.ptp(y) == 0 or abs(change) <= max(5 * noise, 1e-9 * scale):
@@ -316,28 +166,34 @@ def _clearly_rising(c: np.ndarray, length: np.ndarray) -> np.ndarray:
     """Rows whose change from the first to the last samples is certainly more than five
     times their noise (:func:`noise_level`), so that :func:`prepare` would pass them.
 
-    The median absolute second difference is below x when more than half of the second
-    differences are; counting over the first 52 % of the columns is enough for a curve whose
-    noise is small against its rise, and a curve that fails the count goes to
-    :func:`prepare`, which decides exactly.
+    The noise is 1.4826/sqrt(6) times the median absolute second difference, which is below
+    x when more than half of the second differences are. By Chebyshev's inequality at most
+    S/x^2 of them reach x, S being their sum of squares; that bound, over the first 60 % of
+    the columns, settles every curve whose noise is below about 5 % of its change, and the
+    others go to :func:`prepare`, which decides exactly.
     """
-    q = np.maximum(3, length // 20)
-    first, _ = row_means(c, np.zeros_like(length), q)
-    last, _ = row_means(c, length - q, q)
+    if (length == c.shape[1]).all():
+        q = max(3, c.shape[1] // 20)
+        first, last = c[:, :q].mean(1), c[:, -q:].mean(1)
+    else:
+        q = np.maximum(3, length // 20)
+        first, _ = row_means(c, np.zeros_like(length), q)
+        last, _ = row_means(c, length - q, q)
     change = np.abs(last - first)
     scale = np.maximum(np.maximum(np.abs(first), np.abs(last)), 1e-300)
     # 5 * 1.4826 * median / sqrt(6) < change, with a margin for rounding
     below = 0.999 * change * np.sqrt(6.0) / (5 * 1.4826)
     half = (length - 2) // 2
-    span = min(c.shape[1] - 2, int(np.ceil(0.52 * (int(length.max()) - 2))) + 2)
+    span = min(c.shape[1] - 2, int(np.ceil(0.6 * (int(length.max()) - 2))) + 2)
     second = np.multiply(c[:, 1:span + 1], 2.0)
     np.subtract(c[:, 2:span + 2], second, out=second)
     second += c[:, :span]
-    np.abs(second, out=second)
-    small = second < below[:, None]
-    if (length < length.max()).any():
-        small &= np.arange(span) < (length - 2)[:, None]
-    return (change > 1e-9 * scale) & (np.count_nonzero(small, axis=1) > half)
+    counted = np.minimum(span, length - 2)
+    if (counted < span).any():
+        second *= np.arange(span) < counted[:, None]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        reach = np.einsum("ij,ij->i", second, second) / (below * below)
+    return (change > 1e-9 * scale) & (counted - reach > half)
 
 
 def _search_rows(t: np.ndarray, length: np.ndarray, value: np.ndarray) -> np.ndarray:
@@ -424,7 +280,10 @@ def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
                              f"{begin[j]:g} s to {end[j]:g} s", "start_s", starts[at[j]])
     if (~given).any():
         found = rows[~given]
-        start[found] = detect_starts(t_all[found], c_all[found], length[found])
+        if found.size == total:
+            start[:] = detect_starts(t_all, c_all, length)
+        else:
+            start[found] = detect_starts(t_all[found], c_all[found], length[found])
         detected[found] = True
     first = _search_rows(t_all, length, start)
     for i in rows[length[rows] - first[rows] < MIN_POINTS]:

@@ -41,13 +41,16 @@ References
 
 from __future__ import annotations
 
+import os
 from collections.abc import Callable, Sequence
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from scaleup.errors import InputError
-from scaleup.measure.curve_checks import MIN_POINTS, Rejected, detect_start, prepare_batch
+from scaleup.measure.curve_checks import MIN_POINTS, Rejected, prepare_batch
+from scaleup.measure.curve_start import detect_start
 from scaleup.measure.lagbias import lag_bias_rows
 from scaleup.measure.loglinear import log_linear_batch
 from scaleup.measure.windowfit import fit_windows
@@ -64,7 +67,7 @@ CURVE_METHODS = {
     "log-linear": "straight line through ln(C_inf - C) against time, C_inf taken as C* if "
                   "given, else the mean of the last samples; no lag correction",
 }
-_BLOCK_SAMPLES = 2_000_000  # samples per progress step in a batch (at least one curve)
+_BLOCK_SAMPLES = 4_000_000  # samples per progress step in a batch (at least one curve)
 
 
 class CurveRejected(InputError):
@@ -263,19 +266,26 @@ def analyse_curves(curves: Sequence[tuple[np.ndarray, np.ndarray]], *,
             raise InputError(f"{tau!r} is not a probe time constant; expected 0 s or more",
                              "tau_p_s", tau)
     out: list[CurveAnalysis | Rejected] = []
-    first = 0
-    while first < total:
-        stop, samples = first, 0
-        while stop < total and (stop == first or samples < _BLOCK_SAMPLES):
-            samples += len(curves[stop][0])
-            stop += 1
-        block = range(first, stop)
-        out.extend(_analyse_block([curves[i] for i in block], [float(taus[i]) for i in block],
-                                  lo, hi, method, [starts[i] for i in block],
-                                  [stars[i] for i in block]))
-        first = stop
-        if progress is not None:
-            progress(stop, total)
+    # the log-linear fits run on a second core, when there is one, beside the nonlinear ones
+    pool = ThreadPoolExecutor(max_workers=1) if (os.cpu_count() or 1) > 1 else None
+    try:
+        first = 0
+        while first < total:
+            stop, samples = first, 0
+            while stop < total and (stop == first or samples < _BLOCK_SAMPLES):
+                samples += len(curves[stop][0])
+                stop += 1
+            block = range(first, stop)
+            out.extend(_analyse_block([curves[i] for i in block],
+                                      [float(taus[i]) for i in block], lo, hi, method,
+                                      [starts[i] for i in block], [stars[i] for i in block],
+                                      pool))
+            first = stop
+            if progress is not None:
+                progress(stop, total)
+    finally:
+        if pool is not None:
+            pool.shutdown()
     return out
 
 
@@ -301,16 +311,23 @@ def _per_curve(value, total: int, name: str) -> list:
 
 
 def _analyse_block(curves: list, taus: list[float], lo: float, hi: float, method: str,
-                   starts: list, stars: list) -> list[CurveAnalysis | Rejected]:
-    batch, rejected = prepare_batch(curves, starts, stars)
-    results: list[CurveAnalysis | Rejected] = list(rejected)
-    if batch is None:
-        return results
-    tau = np.array([taus[i] for i in batch.index])
-    nonlinear = fit_windows(batch, tau, (lo, hi))
-    loglin = log_linear_batch(batch, lo, hi, [stars[i] for i in batch.index])
-    fits = _nonlinear_fits(batch, tau, nonlinear, lo, hi)
-    loglins = _log_linear_fits(batch, loglin)
+                   starts: list, stars: list, pool: ThreadPoolExecutor | None
+                   ) -> list[CurveAnalysis | Rejected]:
+    # wild data overflow on the way to a rejection; every estimate is checked before use
+    with np.errstate(all="ignore"):
+        batch, rejected = prepare_batch(curves, starts, stars)
+        results: list[CurveAnalysis | Rejected] = list(rejected)
+        if batch is None:
+            return results
+        tau = np.array([taus[i] for i in batch.index])
+        block_stars = [stars[i] for i in batch.index]
+        if pool is None:
+            loglin, loglins = _log_linear_results(batch, lo, hi, block_stars)
+        else:
+            job = pool.submit(_log_linear_results, batch, lo, hi, block_stars)
+        fits = _nonlinear_fits(batch, tau, fit_windows(batch, tau, (lo, hi)), lo, hi)
+        if pool is not None:
+            loglin, loglins = job.result()
     for j, i in enumerate(batch.index.tolist()):
         nl, nl_reason, nl_warnings, bias = fits[j]
         ll = loglins[j]
@@ -359,6 +376,12 @@ def _nonlinear_fits(batch, tau, nl, lo: float, hi: float) -> list[tuple]:
                        times, nl.residuals[j], f.cov[j])
         out.append((fit, None, _fit_warnings(fit, bias, last, hi), bias))
     return out
+
+
+def _log_linear_results(batch, lo: float, hi: float, stars: list):
+    with np.errstate(all="ignore"):  # per thread: see _analyse_block
+        loglin = log_linear_batch(batch, lo, hi, stars)
+    return loglin, _log_linear_fits(batch, loglin)
 
 
 def _log_linear_fits(batch, ll) -> list[CurveFit | None]:

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from scaleup.errors import InputError
-from scaleup.measure.curve_checks import noise_level
+from scaleup.measure.curve_start import noise_level
 from scaleup.measure.curves import DEFAULT_WINDOW, CurveAnalysis, CurveRejected, analyse_curve
 
 LINEAR_PART = 0.15  # fit OUR between 15 % and 85 % of the fall, clear of both corners

@@ -22,36 +22,14 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
+
+from scaleup.measure.varpro import BatchFit, _lag_sums, _Steps
 
 # Below this |1 - k tau_p| the textbook form of g loses digits to cancellation; the
 # symmetric form with expm1 is used instead (slower, exact everywhere).
 _NEAR_SINGULAR = 0.05
 _SERIES_X = 1e-2  # below this x the series of phi and omega is exact to ~1e-13
-
-
-@dataclass(frozen=True, eq=False)
-class BatchFit:
-    """Estimates for a batch of ``m`` curves (arrays of shape ``(m,)``; ``cov`` is (m, 3, 3)).
-
-    ``cov`` is the covariance of (c_inf, c0, kla) from the Jacobian at the optimum, scaled by
-    the residual variance ``ssr / (n_points - 3)`` as in ordinary nonlinear least squares.
-    Concentrations are in the unit of the data; ``kla_per_s`` in 1/s.
-    """
-
-    kla_per_s: np.ndarray
-    kla_stderr_per_s: np.ndarray
-    c_inf: np.ndarray
-    c_inf_stderr: np.ndarray
-    c0: np.ndarray
-    c0_stderr: np.ndarray
-    cov: np.ndarray
-    ssr: np.ndarray
-    n_points: np.ndarray
-    iterations: np.ndarray
-    converged: np.ndarray
 
 
 def response(t: np.ndarray | float, kla: np.ndarray | float,
@@ -340,23 +318,6 @@ class _Chunk:
         return out
 
 
-def _lag_sums(a, b, e1, e2, ec, t1, t2, tc, et, ef, tf, f1, f2, fc):
-    """Sums of g = p e - q f and v = r (e - d t e - f) from sums of e, t e and f.
-
-    d = b - a, p = b/d, q = a/d, r = b/d^2 (the textbook form, used away from a = b).
-    """
-    d = b - a
-    p, q, r = b / d, a / d, b / (d * d)
-    s_g = p * e1 - q * f1
-    s_gg = p * p * e2 - 2 * p * q * ef + q * q * f2
-    s_cg = p * ec - q * fc
-    s_u = e1 - d * t1 - f1
-    s_uu = e2 + d * d * t2 + f2 - 2 * d * et - 2 * ef + 2 * d * tf
-    s_gu = p * (e2 - d * et - ef) - q * (ef - d * tf - f2)
-    s_cu = ec - d * tc - fc
-    return np.array([s_g, s_gg, s_cg, r * s_u, r * r * s_uu, r * s_gu, r * s_cu])
-
-
 def guess_kla(t: np.ndarray, c: np.ndarray, mask: np.ndarray) -> np.ndarray:
     """A rough kLa [1/s] per row, to start the fit from.
 
@@ -462,7 +423,8 @@ def _fit_rows(t: np.ndarray, c: np.ndarray, mask: np.ndarray, tau_p, kla_guess=N
     m, n = t.shape
     tau = np.broadcast_to(np.asarray(tau_p, dtype=float), (m,))
     stride = max(1, n // 256)  # a starting value needs no more than a few hundred samples
-    rows = max(1, _CHUNK_ELEMENTS // max(n, 1))
+    # chunks of equal size: a small last one would iterate on its own for as long
+    rows = -(-m // max(1, -(-m * n // _CHUNK_ELEMENTS)))
     parts = []
     for i in range(0, m, rows):
         part = slice(i, i + rows)
@@ -474,77 +436,6 @@ def _fit_rows(t: np.ndarray, c: np.ndarray, mask: np.ndarray, tau_p, kla_guess=N
                                 max_iter, rtol))
     return BatchFit(*(np.concatenate([getattr(p, f) for p in parts])
                       for f in BatchFit.__dataclass_fields__))
-
-
-class _Steps:
-    """Gauss-Newton bookkeeping for ``m`` separable fits: the best point so far, the step
-    and whether each fit is still going.
-
-    Each step is Kaufman's Gauss-Newton step on the variable-projection functional; a step
-    that raises the residual sum of squares (beyond its rounding floor) is halved, and kLa is
-    kept positive.
-    """
-
-    def __init__(self, k: np.ndarray, max_iter: int, rtol: float):
-        m = k.size
-        self.k = k
-        self.k_best = k.copy()
-        self.ssr_best = np.full(m, np.inf)
-        self.step = np.zeros(m)
-        self.best = np.zeros((7, m))
-        self.lin_best = np.zeros((2, m))
-        self.active = np.ones(m, bool)
-        self.converged = np.zeros(m, bool)
-        self.iterations = np.zeros(m, int)
-        self.since = np.zeros(m, int)  # iterations since the last restart
-        self.max_iter, self.rtol = max_iter, rtol
-
-    def restart(self, rows: np.ndarray) -> None:
-        """Fit ``rows`` afresh (a new window) from their best kLa."""
-        self.converged[rows], self.active[rows] = False, True
-        self.ssr_best[rows], self.k[rows], self.since[rows] = np.inf, self.k_best[rows], 0
-
-    def update(self, rows: np.ndarray, sums: np.ndarray, n: np.ndarray, s_c: np.ndarray,
-               s_cc: np.ndarray) -> np.ndarray:
-        """One step for ``rows`` from their sums at k and their window's count, data sum and
-        sum of squares (data centred on ``shift``); returns the rows that converged."""
-        self.iterations[rows] += 1
-        self.since[rows] += 1
-        s_g, s_gg, s_cg, s_v, s_vv, s_gv, s_cv = sums
-        det = n * s_gg - s_g * s_g
-        with np.errstate(divide="ignore", invalid="ignore"):
-            alpha = (s_gg * s_c - s_g * s_cg) / det
-            beta = (n * s_cg - s_g * s_c) / det
-            ssr = s_cc - alpha * s_c - beta * s_cg
-        floor = 1e-12 * s_cc + 1e-300  # rounding floor of an SSR computed from these sums
-        better = np.isfinite(ssr) & (ssr <= self.ssr_best[rows] + floor)
-        acc = rows[better]
-        self.k_best[acc] = self.k[acc]
-        self.ssr_best[acc] = ssr[better]
-        self.best[:, acc] = sums[:, better]
-        self.lin_best[:, acc] = alpha[better], beta[better]
-        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-            grad = s_cv - alpha * s_v - beta * s_gv
-            proj = s_vv - (s_gg * s_v**2 - 2 * s_g * s_v * s_gv + n * s_gv**2) / det
-            gn = grad / (beta * proj)
-        gn = np.where(np.isfinite(gn), gn, 0.0)
-        new_step = np.where(better, gn, self.step[rows] / 2.0)
-        base = self.k_best[rows]
-        # keep kLa positive and move at most tenfold per iteration
-        trial = np.clip(base + new_step, base / 10.0, base * 10.0)
-        new_step = trial - base
-        done = np.abs(new_step) <= self.rtol * base
-        self.converged[rows[done]] = True
-        self.active[rows[done]] = False
-        self.step[rows] = new_step
-        self.k[rows] = trial
-        self.active[rows[self.since[rows] >= self.max_iter]] = False
-        return rows[done]
-
-    def result(self, n: np.ndarray, shift: np.ndarray) -> BatchFit:
-        """Estimates and covariances of every fit (``shift`` added back to the data)."""
-        return _statistics(n, shift, self.k_best, self.ssr_best, self.best, self.lin_best,
-                           self.iterations, self.converged)
 
 
 def _fit_chunk(ch: _Chunk, k: np.ndarray, max_iter: int, rtol: float) -> BatchFit:
@@ -562,36 +453,3 @@ def _fit_chunk(ch: _Chunk, k: np.ndarray, max_iter: int, rtol: float) -> BatchFi
         steps.update(rows, ch.sums(steps.k[ch.held])[:, moving], ch.n[rows], ch.s_c[rows],
                      ch.s_cc[rows])
     return steps.result(ch.n, ch.shift)
-
-
-def _statistics(n, shift, k_best, ssr_best, best, lin_best, iterations, converged
-                ) -> BatchFit:
-    """Covariance of (alpha, beta, k) from J'J, then of (c_inf = alpha, c0 = alpha + beta, k)."""
-    m = k_best.size
-    s_g, s_gg, _, s_v, s_vv, s_gv, _ = best
-    alpha, beta = lin_best
-    jtj = np.empty((m, 3, 3))
-    jtj[:, 0, 0], jtj[:, 0, 1], jtj[:, 0, 2] = n, s_g, beta * s_v
-    jtj[:, 1, 1], jtj[:, 1, 2] = s_gg, beta * s_gv
-    jtj[:, 2, 2] = beta * beta * s_vv
-    jtj[:, 1, 0], jtj[:, 2, 0], jtj[:, 2, 1] = jtj[:, 0, 1], jtj[:, 0, 2], jtj[:, 1, 2]
-    dof = n - 3.0
-    finite = np.isfinite(jtj).all(axis=(1, 2))
-    inv = np.full((m, 3, 3), np.nan)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        s2 = np.where(dof > 0, np.maximum(ssr_best, 0.0) / dof, np.nan)
-        if finite.any():
-            sub = jtj[finite]
-            ok = np.abs(np.linalg.det(sub)) > 0
-            rows = np.flatnonzero(finite)[ok]
-            inv[rows] = np.linalg.inv(sub[ok])
-    transform = np.array([[1.0, 0, 0], [1.0, 1.0, 0], [0, 0, 1.0]])
-    cov = s2[:, None, None] * (transform @ inv @ transform.T)
-    with np.errstate(invalid="ignore"):
-        se = np.sqrt(np.diagonal(cov, axis1=1, axis2=2))
-    return BatchFit(
-        kla_per_s=k_best, kla_stderr_per_s=se[:, 2],
-        c_inf=alpha + shift, c_inf_stderr=se[:, 0],
-        c0=alpha + beta + shift, c0_stderr=se[:, 1],
-        cov=cov, ssr=ssr_best, n_points=n.astype(int), iterations=iterations,
-        converged=converged & np.isfinite(ssr_best))

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from scaleup.measure import expfit, taylorfit
+from scaleup.measure import expfit, taylorfit, varpro
 
 _STRIDE = 8  # every so many samples for the start of a fit on the samples
 
@@ -80,7 +80,7 @@ def _even_bias(k: np.ndarray, tau: np.ndarray, t0: np.ndarray, dt: np.ndarray,
     sum_gg = p * p * moments(2 * k)[0] - 2 * p * q * moments(k + b)[0] + q * q * moments(2 * b)[0]
     mean = 1.0 - sum_g / n  # of the data y = 1 - g
     s_cc = n - 2.0 * sum_g + sum_gg - n * mean * mean
-    steps = expfit._Steps(k.copy(), 60, 1e-9)
+    steps = varpro._Steps(k.copy(), 60, 1e-9)
     zero = np.zeros(k.size)
     while True:
         rows = np.flatnonzero(steps.active)

@@ -24,7 +24,7 @@ from collections.abc import Callable
 
 import numpy as np
 
-from scaleup.measure import expfit
+from scaleup.measure import expfit, varpro
 
 ORDER = 7  # highest power of u kept
 _POWERS = ORDER + 3  # s^0 ... s^(ORDER + 2): t and t^2 weights need two more
@@ -206,11 +206,11 @@ class Expansion:
         ec, tcx = scale * x0, scale * (tc * x0 + h * x1)
         lag = self.lagged[rows]
         if lag.all():
-            return expfit._lag_sums(k, self.b[rows], e1, e2, ec, t1, t2, tcx, et, ef, tf,
+            return varpro._lag_sums(k, self.b[rows], e1, e2, ec, t1, t2, tcx, et, ef, tf,
                                     self.f1[rows], self.f2[rows], self.fc[rows])
         out = np.array([e1, e2, ec, -t1, t2, -et, -tcx])  # ideal probe: g = e, v = -t e
         if lag.any():
-            out[:, lag] = expfit._lag_sums(
+            out[:, lag] = varpro._lag_sums(
                 k[lag], self.b[rows[lag]], e1[lag], e2[lag], ec[lag], t1[lag], t2[lag],
                 tcx[lag], et[lag], ef[lag], tf[lag], self.f1[rows[lag]], self.f2[rows[lag]],
                 self.fc[rows[lag]])
@@ -253,7 +253,7 @@ class Expansion:
 
 def fit(ex: Expansion, k: np.ndarray, rows: np.ndarray, *, max_iter: int = 60,
         rtol: float = 1e-9, relocate: Callable | None = None
-        ) -> tuple[expfit._Steps, np.ndarray]:
+        ) -> tuple[varpro._Steps, np.ndarray]:
     """Gauss-Newton fits of ``rows`` of an :class:`Expansion`.
 
     Parameters
@@ -276,11 +276,11 @@ def fit(ex: Expansion, k: np.ndarray, rows: np.ndarray, *, max_iter: int = 60,
 
     Returns
     -------
-    (expfit._Steps, int array)
+    (varpro._Steps, int array)
         The step state (estimates, sums at the estimates, convergence) and the rows left to
         the plain engine (kLa near 1/tau_p), with their windows as they stand.
     """
-    steps = expfit._Steps(k, max_iter, rtol)
+    steps = varpro._Steps(k, max_iter, rtol)
     steps.active[:] = False
     steps.active[rows] = True
     plain = np.zeros(k.size, bool)

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from scaleup.measure import expfit, taylorfit
+from scaleup.measure import expfit, taylorfit, varpro
 from scaleup.measure.curve_checks import MIN_POINTS, Batch
 from scaleup.measure.lagbias import lag_bias_batch
 from scaleup.measure.loglinear import t975
@@ -38,7 +38,7 @@ class WindowFits:
     """
 
     status: np.ndarray
-    fit: expfit.BatchFit
+    fit: varpro.BatchFit
     ci_half: np.ndarray
     first: np.ndarray
     stop: np.ndarray
@@ -88,7 +88,7 @@ def _search_near(t, origin, pos, lo, hi, target, right: bool, near) -> np.ndarra
     return found
 
 
-def _rough(batch: Batch, tau: np.ndarray) -> expfit.BatchFit:
+def _rough(batch: Batch, tau: np.ndarray) -> varpro.BatchFit:
     """A first fit of every row on about 300 of its samples after the start."""
     every = np.maximum(1, batch.length // _ROUGH_SAMPLES)
     width = int(np.max(-(-batch.length // every)))
@@ -106,13 +106,22 @@ def _rough(batch: Batch, tau: np.ndarray) -> expfit.BatchFit:
 
 
 class _Windows:
-    """Where each row's window lies for a kLa, and how many windows each has been fitted on."""
+    """Where each row's window lies for a kLa, and how many windows each has been fitted on.
+
+    For each row it keeps the kLa its window was last found for, the times at which the
+    probe shows the two fractions then, and the gaps around them to the neighbouring
+    samples. The probe reading is the sum of two exponential delays, so scaling kLa by s
+    moves any such time by at most |1/s - 1| of itself (stochastic ordering); a row whose
+    times cannot have left their gaps keeps its window without a search.
+    """
 
     def __init__(self, batch: Batch, tau: np.ndarray, fractions: tuple[float, float]):
         self.batch, self.tau, self.fractions = batch, tau, fractions
         m = tau.size
         self.fits = np.ones(m, int)
+        self.k_at = np.full(m, np.nan)
         self.t_lo, self.t_hi = np.full(m, np.nan), np.full(m, np.nan)
+        self.gaps = np.zeros((4, m))  # t_lo in (gaps[0], gaps[1]], t_hi in [gaps[2], gaps[3])
         self.short = {}  # row: the window, too short, that dropped it
 
     def locate(self, rows, k, near=None) -> tuple[np.ndarray, np.ndarray]:
@@ -123,12 +132,24 @@ class _Windows:
         lo, hi, origin = b.first[rows], b.length[rows], b.start[rows]
         t_lo = expfit._time_at_fraction(k, tau, self.fractions[0], self.t_lo[rows])
         t_hi = expfit._time_at_fraction(k, tau, self.fractions[1], self.t_hi[rows])
-        self.t_lo[rows], self.t_hi[rows] = t_lo, t_hi
+        self.t_lo[rows], self.t_hi[rows], self.k_at[rows] = t_lo, t_hi, k
         if near is None:
-            return (_search(b.t, origin, rows, lo, hi, t_lo, False),
-                    _search(b.t, origin, rows, lo, hi, t_hi, True))
-        return (_search_near(b.t, origin, rows, lo, hi, t_lo, False, near[0]),
-                _search_near(b.t, origin, rows, lo, hi, t_hi, True, near[1]))
+            first = _search(b.t, origin, rows, lo, hi, t_lo, False)
+            stop = _search(b.t, origin, rows, lo, hi, t_hi, True)
+        else:
+            first = _search_near(b.t, origin, rows, lo, hi, t_lo, False, near[0])
+            stop = _search_near(b.t, origin, rows, lo, hi, t_hi, True, near[1])
+        last = b.t.shape[1] - 1
+
+        def time(col, valid, outside):
+            value = b.t[rows, np.clip(col, 0, last)] - origin
+            return np.where(valid, value, outside)
+
+        self.gaps[:, rows] = (time(first - 1, first > lo, -np.inf),
+                              time(first, first < hi, np.inf),
+                              time(stop - 1, stop > lo, -np.inf),
+                              time(stop, stop < hi, np.inf))
+        return first, stop
 
     def follow(self, rows, k, first, stop, status) -> tuple:
         """Windows for rows that converged on [first, stop): (moved, dropped, first, stop);
@@ -136,6 +157,15 @@ class _Windows:
         moved, dropped = np.zeros(rows.size, bool), np.zeros(rows.size, bool)
         new_first, new_stop = first.copy(), stop.copy()
         more = self.fits[rows] < _MAX_FITS
+        at = rows[more]
+        # how far the two times can have moved since the window was found (Newton's
+        # tolerance included)
+        reach = np.abs(self.k_at[at] / k[more] - 1.0) + 1e-11
+        t_lo, t_hi = self.t_lo[at], self.t_hi[at]
+        g = self.gaps[:, at]
+        stays = ((t_lo * (1 - reach) > g[0]) & (t_lo * (1 + reach) <= g[1])
+                 & (t_hi * (1 - reach) >= g[2]) & (t_hi * (1 + reach) < g[3]))
+        more[np.flatnonzero(more)[stays]] = False
         if more.any():
             f, s = self.locate(rows[more], k[more], (first[more], stop[more]))
             short = s - f < MIN_POINTS
@@ -150,13 +180,13 @@ class _Windows:
         return moved, dropped, new_first, new_stop
 
 
-def _assign(target: expfit.BatchFit, rows: np.ndarray, part: expfit.BatchFit) -> None:
-    for name in expfit.BatchFit.__dataclass_fields__:
+def _assign(target: varpro.BatchFit, rows: np.ndarray, part: varpro.BatchFit) -> None:
+    for name in varpro.BatchFit.__dataclass_fields__:
         getattr(target, name)[rows] = getattr(part, name)
 
 
 def _plain_rows(batch, rows, k, first, stop, windows: _Windows, status,
-                fit: expfit.BatchFit) -> None:
+                fit: varpro.BatchFit) -> None:
     """The window iteration of ``rows`` by one plain fit per window, from their current
     window and kLa (kLa near 1/tau_p, where the moments would lose digits); results go
     into ``fit``, ``k``, ``first``, ``stop`` and ``status``."""
