@@ -33,3 +33,27 @@ async def test_number_keys_switch_screens_and_esc_leaves_a_field(campaign):
         await pilot.press("2")  # the Scale-up screen opens with its results focused
         await settle(pilot)
         assert app.current_mode == "vessels"
+
+
+async def test_correlation_plots_survive_a_redraw(demo_path, tmp_path):
+    """The parity and residual plots are drawn again on every resize; a log axis that
+    transformed its data in place failed on the second draw."""
+    import shutil
+
+    from scaleup.campaign import Campaign
+
+    path = tmp_path / "demo.db"
+    shutil.copy(demo_path, path)
+    with Campaign(path) as c:
+        app = make_app(c, Settings(page_size=40, detail_delay_s=0.0, plots=True))
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(pilot)
+            await pilot.press("5")
+            await settle(pilot)
+            await pilot.press("F")
+            await settle(pilot, rounds=20)
+            assert app.screen.report is not None
+            for size in ((120, 36), (100, 30), (160, 50)):
+                await pilot.resize_terminal(*size)
+                await settle(pilot, rounds=3)
+            assert app.is_running

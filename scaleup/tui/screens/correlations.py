@@ -149,6 +149,20 @@ def comparison_table(rows: list[dict], target: Target = TARGETS["kla"]) -> Table
     return table
 
 
+def _log_ticks(lo: float, hi: float) -> tuple[list[float], list[str]]:
+    """Tick positions (log10 of the value) and labels (the value) for a log axis drawn on
+    a linear one: plotext's own log scale transforms its data in place and fails when the
+    widget is drawn a second time (a resize, a refresh)."""
+    from scaleup.units import sig
+
+    first, last = int(np.floor(np.log10(lo))), int(np.ceil(np.log10(hi)))
+    values = [m * 10.0**e for e in range(first, last + 1) for m in (1, 2, 5)
+              if lo <= m * 10.0**e <= hi]
+    if len(values) < 2:
+        values = [lo, hi]
+    return [float(np.log10(v)) for v in values], [sig(v, 2) for v in values]
+
+
 def draw_parity(plot, observed, predicted, vessels, published=None,
                 target: Target = TARGETS["kla"]) -> None:
     """Measured against predicted on log axes, one marker per vessel, ±20 % lines."""
@@ -158,22 +172,25 @@ def draw_parity(plot, observed, predicted, vessels, published=None,
     obs = np.asarray(observed) * target.factor  # kLa in 1/h, the unit people read it in
     pred = np.asarray(predicted) * target.factor
     lo, hi = min(obs.min(), pred.min()) * 0.8, max(obs.max(), pred.max()) * 1.25
-    line = np.geomspace(lo, hi, 30)
+    line = np.log10(np.geomspace(lo, hi, 30))
     plt.plot(line.tolist(), line.tolist(), color="gray", marker="braille")
     for factor in (0.8, 1.2):
-        plt.plot(line.tolist(), (line * factor).tolist(), color="gray", marker="dot")
+        plt.plot(line.tolist(), (line + np.log10(factor)).tolist(), color="gray", marker="dot")
     if published is not None:
-        plt.scatter(obs.tolist(), (np.asarray(published[1]) * target.factor).tolist(),
+        plt.scatter(np.log10(obs).tolist(),
+                    np.log10(np.asarray(published[1]) * target.factor).tolist(),
                     marker="·", color="gray", label=published[0])
     for i, vessel in enumerate(dict.fromkeys(vessels)):
         pick = np.asarray(vessels) == vessel
-        plt.scatter(obs[pick].tolist(), pred[pick].tolist(), marker=MARKERS[i % len(MARKERS)],
-                    color=COLOURS[i % len(COLOURS)], label=str(vessel))
-    plt.xscale("log")
-    plt.yscale("log")
+        plt.scatter(np.log10(obs[pick]).tolist(), np.log10(pred[pick]).tolist(),
+                    marker=MARKERS[i % len(MARKERS)], color=COLOURS[i % len(COLOURS)],
+                    label=str(vessel))
+    ticks, labels = _log_ticks(lo, hi)
+    plt.xticks(ticks, labels)
+    plt.yticks(ticks, labels)
     plt.xlabel(f"measured {target.quantity}")
     plt.ylabel(f"predicted {target.quantity.split(' ')[1]}")
-    plt.title("parity, ±20 % lines")
+    plt.title("parity, ±20 % lines (log axes)")
     plot.refresh()
 
 
@@ -183,10 +200,14 @@ def draw_residuals_against(plot, observed, predicted, x, x_label: str, title: st
     plt.clear_data()
     plt.clear_figure()
     ratio = np.log(np.asarray(observed) / np.asarray(predicted))
+    x = np.asarray(x, dtype=float)
     plt.hline(0.0, color="gray")
-    plt.scatter(np.asarray(x).tolist(), ratio.tolist(), marker="dot", color="orange")
-    plt.xscale("log")
-    plt.xlabel(x_label)
+    plt.scatter(np.log10(x).tolist(), ratio.tolist(), marker="dot", color="orange")
+    lo, hi = float(x.min()), float(x.max())
+    ticks, labels = _log_ticks(lo / 1.5, hi * 1.5) if hi > lo else ([float(np.log10(lo))],
+                                                                     [f"{lo:.3g}"])
+    plt.xticks(ticks, labels)
+    plt.xlabel(x_label + " (log axis)")
     plt.ylabel("ln(measured/fit)")
     plt.title(title)
     plot.refresh()
