@@ -206,3 +206,26 @@ def test_sherwood_plus_two_recovers_ranz_marshall():
     assert table["c_schmidt"]["fixed"] and table["c_schmidt"]["value"] == pytest.approx(1 / 3)
     p = result.predict({"reynolds": [50.0], "schmidt": [1.0]})
     assert p.value[0] == pytest.approx(2.0 + 0.6 * 50**0.5, rel=0.03)
+
+
+def test_mixing_coalescence_classes_without_a_medium_factor_is_warned():
+    """van't Riet (1979) gives separate coalescing / non-coalescing correlations; a single
+    law over both classes gets a warning that says how to split them."""
+    import numpy as np
+
+    from scaleup.correlate import kla_observations
+    from scaleup.correlate.fitting import fit_kla
+
+    rng = np.random.default_rng(3)
+    n = 24
+    pv = rng.uniform(200, 3000, n)
+    us = rng.uniform(0.003, 0.02, n)
+    classes = np.array(["coalescing", "non-coalescing"] * (n // 2))
+    kla = np.where(classes == "coalescing", 0.026 * pv**0.4 * us**0.5,
+                   0.002 * pv**0.7 * us**0.2) * np.exp(rng.normal(0, 0.05, n))
+    data = kla_observations(kla, gassed_power_per_volume_w_m3=pv, superficial_velocity_m_s=us,
+                            coalescence=classes)
+    mixed = fit_kla(data, power_basis="gassed")
+    assert any("mix coalescence classes" in w for w in mixed.warnings)
+    split = fit_kla(data, power_basis="gassed", medium_factor=True)
+    assert not any("mix coalescence classes" in w for w in split.warnings)

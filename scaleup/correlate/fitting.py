@@ -509,6 +509,13 @@ def fit_kla(data: Observations, *, power_basis: str, form: str = "power-law",
         model = model.with_classes(data.categories[COALESCENCE])
         if len(model.medium_classes) < 2:
             notes.append("all runs are of one coalescence class: no medium factor fitted")
+    elif COALESCENCE in data.categories and len(set(data.categories[COALESCENCE])) > 1:
+        # coalescing and non-coalescing media follow different exponents (van't Riet 1979
+        # gives separate correlations): one law over both is rarely what is wanted
+        classes = ", ".join(sorted(set(map(str, data.categories[COALESCENCE]))))
+        notes.append(f"the runs mix coalescence classes ({classes}) in one correlation: fit "
+                     "each class on its own (e.g. --where \"coalescence = 'coalescing'\") or "
+                     "add a medium factor")
     result = fit(model, data, method=method, weights=weights, robust=robust)
     return replace(result, warnings=result.warnings + tuple(notes)) if notes else result
 
