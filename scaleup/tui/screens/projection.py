@@ -85,8 +85,12 @@ def rules_table(results: dict) -> Table:
              ("P/V", "kW/m3", "right"), ("tip", "m/s", "right"), ("kLa", "1/h", "right"),
              ("OTR", "mmol/L/h", "right"), ("regime", "", "left")]
     for name, unit, justify in heads:
+        # numbers keep their width (a cut number reads as another number); the regime
+        # words are the ones shortened on a narrow terminal
         table.add_column(f"{name}\n{unit}", justify=justify, no_wrap=True,
-                         min_width=11 if name == "rule" else None)
+                         min_width=11 if name == "rule" else (None if name == "regime"
+                                                              else max(len(unit), 8)),
+                         overflow="ellipsis")
     for r in results["rules"]:
         if r.get("speed_rps") is None:
             table.add_row(r["rule"], *["-"] * 6, Text(r.get("note") or "no solution",
