@@ -51,7 +51,7 @@ import numpy as np
 from scaleup.errors import InputError
 from scaleup.measure.curve_checks import MIN_POINTS, Rejected, prepare_batch
 from scaleup.measure.curve_start import detect_start
-from scaleup.measure.lagbias import lag_bias_rows
+from scaleup.measure.lagbias import lag_bias
 from scaleup.measure.loglinear import log_linear_batch
 from scaleup.measure.windowfit import fit_windows
 
@@ -68,6 +68,7 @@ CURVE_METHODS = {
                   "given, else the mean of the last samples; no lag correction",
 }
 _BLOCK_SAMPLES = 4_000_000  # samples per progress step in a batch (at least one curve)
+_THREAD_SAMPLES = 200_000  # from this size of batch a second thread pays for itself
 
 
 class CurveRejected(InputError):
@@ -266,8 +267,10 @@ def analyse_curves(curves: Sequence[tuple[np.ndarray, np.ndarray]], *,
             raise InputError(f"{tau!r} is not a probe time constant; expected 0 s or more",
                              "tau_p_s", tau)
     out: list[CurveAnalysis | Rejected] = []
-    # the log-linear fits run on a second core, when there is one, beside the nonlinear ones
-    pool = ThreadPoolExecutor(max_workers=1) if (os.cpu_count() or 1) > 1 else None
+    # the log-linear fits of a large batch run on a second core, when there is one, beside
+    # the nonlinear ones
+    many = sum(len(t) for t, _ in curves) > _THREAD_SAMPLES
+    pool = ThreadPoolExecutor(max_workers=1) if many and (os.cpu_count() or 1) > 1 else None
     try:
         first = 0
         while first < total:
@@ -424,44 +427,6 @@ def _fit_warnings(fit: CurveFit, bias: float | None, last_fraction: float,
         out.append(f"the probe is slow for this kLa (kLa*tau_p = {k * tau:.2f} > 0.5): the "
                    "estimate rests on the lag model; a faster probe would give a firmer one")
     return out
-
-
-def lag_bias(kla_per_s: float, tau_p_s: float, t_s: np.ndarray) -> float:
-    """Relative error of kLa fitted without the lag correction to a lagged curve [-].
-
-    Parameters
-    ----------
-    kla_per_s : float
-        True kLa [1/s].
-    tau_p_s : float
-        Probe time constant [s].
-    t_s : array
-        Sample times since gas-on used by the fit [s].
-
-    Returns
-    -------
-    float
-        k_fitted / k_true - 1 [-] for the noise-free lagged curve on these samples; negative
-        means the uncorrected fit reads low.
-
-    Notes
-    -----
-    Late in the rise the lag term exp(-t/tau_p) has died away and the probe signal decays at
-    the true kLa, only scaled; the bias comes from the early samples, so it depends strongly
-    on the window: a fit from the start reads far lower than one that skips the first 20 %.
-
-    Examples
-    --------
-    kLa = 0.02 1/s, tau_p = 8 s, samples every 0.25 s over the whole rise:
-
-    >>> round(lag_bias(0.02, 8.0, np.linspace(0.0, 500.0, 2001)), 4)
-    -0.0713
-    """
-    t = np.asarray(t_s, dtype=float).ravel()
-    if not (tau_p_s > 0 and t.size >= 4):
-        return float("nan")
-    return float(lag_bias_rows(t[None, :], np.array([float(kla_per_s)]),
-                               np.array([float(tau_p_s)]))[0])
 
 
 def fit_probe_step(t_s: Sequence[float] | np.ndarray, c: Sequence[float] | np.ndarray, *,

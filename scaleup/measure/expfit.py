@@ -8,16 +8,10 @@ A gassing-out curve seen through a first-order probe is
 
 with :math:`g = e^{-k t}` when :math:`\\tau_p = 0`. For a fixed :math:`k` the model is linear
 in :math:`C_\\infty` and :math:`C_0`, so they are solved in closed form and only :math:`k`
-is searched (variable projection, Golub and Pereyra [1]_, with Kaufman's Gauss-Newton step
-[2]_). All curves of a batch are padded into one ``(m, n)`` array with a mask and iterated
-together, so the work per iteration is a handful of whole-array numpy operations.
-
-References
-----------
-.. [1] Golub, G. H.; Pereyra, V. "The differentiation of pseudo-inverses and nonlinear least
-   squares problems whose variables separate." SIAM J. Numer. Anal. 10 (1973) 413-432.
-.. [2] Kaufman, L. "A variable projection method for solving separable nonlinear least
-   squares problems." BIT 15 (1975) 49-57.
+is searched, by the variable-projection Gauss-Newton steps of
+:mod:`scaleup.measure.varpro`. All curves of a batch are padded into one ``(m, n)`` array
+with a mask and iterated together, so the work per iteration is a handful of whole-array
+numpy operations.
 """
 
 from __future__ import annotations

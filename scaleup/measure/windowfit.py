@@ -102,7 +102,17 @@ def _rough(batch: Batch, tau: np.ndarray) -> varpro.BatchFit:
         at = np.minimum(cols, batch.length[:, None] - 1)
         t, c = batch.t[rows, at] - batch.start[:, None], batch.c[rows, at]
     usable = (cols >= batch.first[:, None]) & (cols < batch.length[:, None])
-    return expfit._fit_rows(t, c, usable, tau)  # the batch holds finite samples only
+    whole = usable.all(1)
+    if whole.all() or not whole.any():
+        return expfit._fit_rows(t, c, usable, tau)  # the batch holds finite samples only
+    # rows that use every sample take the engine's unmasked path, the others the masked one
+    out = varpro.BatchFit(*(np.empty((t.shape[0],) + (3, 3) * (name == "cov"),
+                                     int if name in ("n_points", "iterations") else
+                                     bool if name == "converged" else float)
+                            for name in varpro.BatchFit.__dataclass_fields__))
+    for rows in (np.flatnonzero(whole), np.flatnonzero(~whole)):
+        _assign(out, rows, expfit._fit_rows(t[rows], c[rows], usable[rows], tau[rows]))
+    return out
 
 
 class _Windows:
