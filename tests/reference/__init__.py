@@ -1,0 +1,1 @@
+"""Checks against published sources (standards, handbook tables, worked examples), one file per area."""

@@ -126,7 +126,7 @@ def test_harriott_example_7_6_fraction_of_o2_used(harriott):
     assert vessel.volume == pytest.approx(151.0, rel=0.002)  # book: 151 m3 (three figures)
     # book: exit gas 0.086 O2 (two figures, +-0.0005)
     assert y_out == pytest.approx(0.086, abs=0.0005)
-    # book: 0.591 of the O2 used; its own arithmetic gives 0.592 (the transcription notes
+    # book: 0.591 of the O2 used; its own arithmetic gives 0.592 (the Scilab companion notes
     # it); 30 degC as 303 K in the book, 303.15 K here (0.05 %): three figures, +-0.0015
     assert (HARRIOTT_Y_IN - y_out) / HARRIOTT_Y_IN == pytest.approx(0.591, abs=0.0015)
 
@@ -169,7 +169,7 @@ def test_harriott_example_7_6_mean_dissolved_oxygen(harriott):
                                             sol, **book)
     mg_l = c_l * M_O2 * 1000.0  # mol/m3 x kg/mol = kg/m3 = g/L; x 1000 mg/g
     # book: C = C* - OUR/kLa = 2.8 mg/L in its text; its own arithmetic gives 2.87 (the
-    # transcription notes it), from y rounded to 0.086. That rounding (+-0.0005, 0.6 % of
+    # Scilab companion notes it), from y rounded to 0.086. That rounding (+-0.0005, 0.6 % of
     # C*) and the book's 1 atm per 10.3 m (0.13 %) are worth 0.035 mg/L, the tolerance;
     # ours is 2.84 (y = 0.0856 unrounded), inside the book's 2.8-2.9 band.
     assert mg_l == pytest.approx(2.87, abs=0.035)
