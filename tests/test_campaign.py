@@ -185,3 +185,26 @@ def test_stored_values_survive_the_round_trip(campaign, rpm, celsius):
     assert units.convert(r["speed_rps"], "speed", "rpm") == pytest.approx(rpm, rel=1e-12)
     assert units.convert(r["temperature_k"], "temperature", "degC") == pytest.approx(celsius,
                                                                                     abs=1e-9)
+
+
+def test_curve_analysis_in_chunks_equals_one_batch(demo_path, tmp_path, monkeypatch):
+    """Curves are read a chunk at a time; the stored results do not depend on the chunk."""
+    import shutil
+
+    from scaleup.services.measurements import MeasurementService
+
+    results = {}
+    for chunk in (1000, 7):
+        path = tmp_path / f"chunk{chunk}.db"
+        shutil.copy(demo_path, path)
+        monkeypatch.setattr(MeasurementService, "CURVE_CHUNK", chunk)
+        seen = []
+        with Campaign(path) as c:
+            out = c.analyse_curves(progress=lambda done, total: seen.append((done, total)))
+            results[chunk] = [(r.get("curve_id"), r.get("kla_per_s")) for r in out]
+            assert seen[-1][0] == seen[-1][1] == len(out)
+            assert all(b[0] >= a[0] for a, b in zip(seen, seen[1:], strict=False))
+    assert [r[0] for r in results[7]] == [r[0] for r in results[1000]]
+    # the same estimates; only the last bits of vectorised sums depend on the batch
+    assert [r[1] for r in results[7]] == pytest.approx([r[1] for r in results[1000]],
+                                                       rel=1e-9)

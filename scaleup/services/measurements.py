@@ -13,6 +13,8 @@ from scaleup.store import records
 class MeasurementService:
     """Part of :class:`scaleup.campaign.Campaign` (see there); needs ``self.conn``, ``self.actor``."""
 
+    CURVE_CHUNK = 1000  # curves whose samples are in memory at once during an analysis
+
     # ---- curves --------------------------------------------------------------------------
     def add_curve(self, run_id: int, time_s, do_values, do_unit: str, *,
                   kind: str = "gassing-out", probe_tau_s: float | None = None,
@@ -75,22 +77,38 @@ class MeasurementService:
         :func:`scaleup.measure.stored.analyse_stored`)."""
         from scaleup.measure.stored import analyse_stored, run_kla
 
-        sql = ("SELECT id, run_id, kind, n_samples, time_s, do_values, do_unit, probe_tau_s, "
-               "gas_on_s, window_low, window_high FROM curve WHERE deleted_at IS NULL")
+        sql = "SELECT id, run_id FROM curve WHERE deleted_at IS NULL"
         params: list = []
         for column, ids in (("id", curve_ids), ("run_id", run_ids)):
             if ids is not None:
                 sql += f" AND {column} IN ({', '.join('?' for _ in ids)})"
                 params += [int(i) for i in ids]
-        stored = self.rows(sql + " ORDER BY id", params)
-        if curve_ids is not None and len(stored) < len(set(curve_ids)):
-            missing = sorted(set(map(int, curve_ids)) - {r["id"] for r in stored})
+        chosen = self.rows(sql + " ORDER BY id", params)
+        if curve_ids is not None and len(chosen) < len(set(curve_ids)):
+            missing = sorted(set(map(int, curve_ids)) - {r["id"] for r in chosen})
             raise InputError(f"no live curve {', '.join(map(str, missing))}", "curve")
-        results, changes = analyse_stored(stored, **options)
+        # samples are read a chunk of curves at a time, so a campaign of 10,000 long curves
+        # does not sit in memory at once; the results are written in one transaction
+        progress = options.pop("progress", None)
+        results, changes, total = [], {}, len(chosen)
+        for start in range(0, total, self.CURVE_CHUNK):
+            ids = [r["id"] for r in chosen[start:start + self.CURVE_CHUNK]]
+            stored = self.rows(
+                "SELECT id, run_id, kind, n_samples, time_s, do_values, do_unit, probe_tau_s, "
+                "gas_on_s, window_low, window_high FROM curve WHERE id IN "
+                f"({', '.join('?' for _ in ids)}) ORDER BY id", ids)
+            offset = start
+            chunk_results, chunk_changes = analyse_stored(
+                stored, **options,
+                progress=None if progress is None else
+                (lambda done, _n, offset=offset: progress(offset + done, total)))
+            results += chunk_results
+            changes.update(chunk_changes)
+            del stored
         with self.transaction():
             for curve_id, values in changes.items():
                 records.update(self.conn, "curve", curve_id, values, actor=self.actor)
-            for run_id in sorted({r["run_id"] for r in stored}):
+            for run_id in sorted({r["run_id"] for r in chosen}):
                 live = self.rows("SELECT kind, kla_per_s, kla_stderr_per_s FROM curve WHERE "
                                  "run_id = ? AND deleted_at IS NULL", (run_id,))
                 values = run_kla(live)
