@@ -200,7 +200,8 @@ def test_curve_analysis_in_chunks_equals_one_batch(demo_path, tmp_path, monkeypa
         monkeypatch.setattr(MeasurementService, "CURVE_CHUNK", chunk)
         seen = []
         with Campaign(path) as c:
-            out = c.analyse_curves(progress=lambda done, total: seen.append((done, total)))
+            out = c.analyse_curves(progress=lambda done, total, seen=seen: seen.append(
+                (done, total)))
             results[chunk] = [(r.get("curve_id"), r.get("kla_per_s")) for r in out]
             assert seen[-1][0] == seen[-1][1] == len(out)
             assert all(b[0] >= a[0] for a, b in zip(seen, seen[1:], strict=False))
