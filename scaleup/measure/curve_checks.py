@@ -17,6 +17,7 @@ from scaleup.errors import InputError
 from scaleup.measure.curve_start import detect_start, detect_starts, end_levels, noise_level
 
 MIN_POINTS = 5  # three parameters (kLa, C_inf, C0) plus two degrees of freedom for an error
+_BLOCK = 100_000  # samples per block of rows in the batch checks: their work arrays stay in cache
 
 
 @dataclass(frozen=True)
@@ -185,14 +186,19 @@ def _clearly_rising(c: np.ndarray, length: np.ndarray) -> np.ndarray:
     below = 0.999 * change * np.sqrt(6.0) / (5 * 1.4826)
     half = (length - 2) // 2
     span = min(c.shape[1] - 2, int(np.ceil(0.6 * (int(length.max()) - 2))) + 2)
-    second = np.multiply(c[:, 1:span + 1], 2.0)
-    np.subtract(c[:, 2:span + 2], second, out=second)
-    second += c[:, :span]
     counted = np.minimum(span, length - 2)
-    if (counted < span).any():
-        second *= np.arange(span) < counted[:, None]
+    square = np.empty(length.size)
+    block = max(1, _BLOCK // span)
+    for a in range(0, length.size, block):
+        b = min(a + block, length.size)
+        second = np.multiply(c[a:b, 1:span + 1], 2.0)
+        np.subtract(c[a:b, 2:span + 2], second, out=second)
+        second += c[a:b, :span]
+        if (counted[a:b] < span).any():
+            second *= np.arange(span) < counted[a:b, None]
+        square[a:b] = np.einsum("ij,ij->i", second, second)
     with np.errstate(divide="ignore", invalid="ignore"):
-        reach = np.einsum("ij,ij->i", second, second) / (below * below)
+        reach = square / (below * below)
     return (change > 1e-9 * scale) & (counted - reach > half)
 
 
@@ -235,19 +241,8 @@ def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
     total = len(ts)
     length = np.array([t.size for t in ts], int)
     width = int(length.max()) if total else 0
-    if (length == width).all():
-        t_all, c_all = np.stack(ts), np.stack(cs)
-    else:
-        t_all, c_all = np.zeros((total, width)), np.zeros((total, width))
-        for i in range(total):
-            t_all[i, :length[i]], c_all[i, :length[i]] = ts[i], cs[i]
-    with np.errstate(over="ignore", invalid="ignore"):
-        simple = np.isfinite(np.einsum("ij,ij->i", t_all, c_all)) & (length >= MIN_POINTS)
-    steps = np.diff(t_all, axis=1)
-    if width > 1:
-        back = steps <= 0
-        at = np.argmax(back, axis=1)
-        simple &= ~(back[np.arange(total), at] & (at < length - 1))
+    t_all, c_all, simple, low, high = _gather(ts, cs, length, width)
+    simple &= length >= MIN_POINTS
     if simple.all():
         simple = _clearly_rising(c_all, length)
     elif simple.any():
@@ -293,25 +288,57 @@ def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
         return None, rejected
     index = np.flatnonzero(keep)
     if not keep.all():
-        t_all, c_all, steps = t_all[index], c_all[index], steps[index]
-    spacing = _spacing(t_all, steps, length[index], simple[index])
+        t_all, c_all, low, high = t_all[index], c_all[index], low[index], high[index]
+    spacing = _spacing(t_all, low, high, length[index], simple[index])
     return Batch(index=index, t=t_all, c=c_all, length=length[index], first=first[index],
                  start=start[index], detected=detected[index], spacing=spacing,
                  warnings=[warnings[i] for i in index]), rejected
 
 
-def _spacing(t: np.ndarray, steps: np.ndarray, length: np.ndarray, padded_ok: np.ndarray
-             ) -> np.ndarray:
-    """Time step of each evenly sampled row [s], nan for the others; ``steps`` are the
-    differences of ``t`` as padded, valid for rows in ``padded_ok`` (the others were
-    compacted since)."""
+def _gather(ts: list, cs: list, length: np.ndarray, width: int) -> tuple:
+    """The curves as two padded arrays (times [s], readings), and per row whether its
+    samples are finite with times increasing, and its smallest and largest padded time
+    step [s].
+
+    Taken a few rows at a time, so that the checks read each block while it is in cache
+    and the time steps never fill an array as large as the batch.
+    """
+    total = len(ts)
+    even = bool((length == width).all())
+    alloc = np.empty if even else np.zeros  # padding must read as zeros
+    t_all, c_all = alloc((total, width)), alloc((total, width))
+    if not even:
+        for i in range(total):
+            t_all[i, :length[i]], c_all[i, :length[i]] = ts[i], cs[i]
+    good = np.zeros(total, bool)
+    low, high = np.full(total, np.inf), np.full(total, -np.inf)
+    block = max(1, _BLOCK // max(width, 1))
+    for a in range(0, total, block):
+        b = min(a + block, total)
+        t, c = t_all[a:b], c_all[a:b]
+        if even:
+            np.stack(ts[a:b], out=t)
+            np.stack(cs[a:b], out=c)
+        with np.errstate(over="ignore", invalid="ignore"):
+            good[a:b] = np.isfinite(np.einsum("ij,ij->i", t, c))
+        if width > 1:
+            steps = np.diff(t, axis=1)
+            down = steps <= 0
+            at = np.argmax(down, axis=1)
+            good[a:b] &= ~(down[np.arange(b - a), at] & (at < length[a:b] - 1))
+            steps.min(1, out=low[a:b])
+            steps.max(1, out=high[a:b])
+    return t_all, c_all, good, low, high
+
+
+def _spacing(t: np.ndarray, low: np.ndarray, high: np.ndarray, length: np.ndarray,
+             padded_ok: np.ndarray) -> np.ndarray:
+    """Time step of each evenly sampled row [s], nan for the others; ``low`` and ``high``
+    are the smallest and largest differences of ``t`` as padded, valid for rows in
+    ``padded_ok`` (the others were compacted since)."""
     step = (t[np.arange(length.size), length - 1] - t[:, 0]) / (length - 1)
-    low, high = np.full(length.size, np.inf), np.full(length.size, -np.inf)
     full = padded_ok & (length == t.shape[1])
-    if full.all():
-        low, high = steps.min(1), steps.max(1)
-    elif full.any():
-        low[full], high[full] = steps[full].min(1), steps[full].max(1)
+    low, high = np.where(full, low, np.inf), np.where(full, high, -np.inf)
     for i in np.flatnonzero(~full):
         d = np.diff(t[i, :length[i]])
         low[i], high[i] = d.min(), d.max()

@@ -52,7 +52,8 @@ class Source:
         self.t, self.c, self.start, self.data = t, c, start, data
 
     def crop(self, rows: np.ndarray, a: int, b: int) -> tuple[np.ndarray, np.ndarray]:
-        t = self.t[rows, a:b] - self.start[rows, None]
+        t = self.t[rows, a:b]  # a gathered copy, worked on in place
+        t -= self.start[rows, None]
         np.maximum(t, 0.0, out=t)
         c = self.c[rows, a:b] if self.data is None else self.data(rows, t)
         return t, c
