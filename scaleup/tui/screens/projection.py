@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from rich.console import Group
 from rich.table import Table
@@ -153,6 +153,9 @@ def design_text(d: dict) -> Text:
     return text
 
 
+DESIGN_CONFIDENCE = 0.9  # probability with which the designed vessel meets the duty
+
+
 class ProjectionScreen(WorkScreen):
     MODE = "scaleup"
     TITLE = "Scale-up"
@@ -259,10 +262,12 @@ class ProjectionScreen(WorkScreen):
                 if values["our"]:
                     point, liquid = self.campaign.scale_pilot(run_id=values["run"])
                     vessel = values["vessel"] or scale_to_volume(point.vessel, values["volume"])
+                    # the design must meet the duty with 90 % probability, as `scaleup
+                    # design` does by default; the rule table shows medians
                     design = self.campaign.design_study(
                         vessel=vessel, liquid=liquid, correlation=values["correlation"],
-                        process=process, limits=limits, grid=(28, 16), map_draws=300,
-                        risk_draws=4000)
+                        process=replace(process, confidence=DESIGN_CONFIDENCE), limits=limits,
+                        grid=(28, 16), map_draws=300, risk_draws=4000)
         except (InputError, ValueError) as exc:
             self.post_message(ResultComputed("projection", None, str(exc)))
             return
