@@ -208,26 +208,6 @@ def vessel_edit(ctx, vessel, impellers, no_impellers, sparger, no_sparger, expec
         _show_vessel(c.vessel(key), as_json)
 
 
-@vessel_group.command("delete")
-@click.argument("vessel")
-@click.pass_context
-def vessel_delete(ctx, vessel):
-    """Delete a vessel (soft; `vessel restore` brings it back). Example: scaleup vessel delete V-1"""
-    with _campaign(ctx) as c:
-        c.delete_vessel(vessel)
-    click.echo(f"deleted vessel {vessel} (restore with `scaleup vessel restore {vessel}`)")
-
-
-@vessel_group.command("restore")
-@click.argument("vessel")
-@click.pass_context
-def vessel_restore(ctx, vessel):
-    """Restore a deleted vessel. Example: scaleup vessel restore V-1"""
-    with _campaign(ctx) as c:
-        c.restore_vessel(vessel)
-    click.echo(f"restored vessel {vessel}")
-
-
 # ------------------------------------------------------------------------------------ media
 @click.group("medium")
 def medium_group() -> None:
@@ -339,26 +319,6 @@ def medium_edit(ctx, medium, salts, no_salts, expected_version, as_json, **kwarg
             if salts or no_salts:
                 c.set_salts(key, new_salts, expected_version=version)
         _show_medium(c.medium(key), as_json)
-
-
-@medium_group.command("delete")
-@click.argument("medium")
-@click.pass_context
-def medium_delete(ctx, medium):
-    """Delete a medium (soft). Example: scaleup medium delete water"""
-    with _campaign(ctx) as c:
-        c.delete_medium(medium)
-    click.echo(f"deleted medium {medium} (restore with `scaleup medium restore {medium}`)")
-
-
-@medium_group.command("restore")
-@click.argument("medium")
-@click.pass_context
-def medium_restore(ctx, medium):
-    """Restore a deleted medium. Example: scaleup medium restore water"""
-    with _campaign(ctx) as c:
-        c.restore_medium(medium)
-    click.echo(f"restored medium {medium}")
 
 
 # ------------------------------------------------------------------------------------- runs
@@ -481,26 +441,6 @@ def run_edit(ctx, run_id, expected_version, as_json, **kwargs):
         _show_run(c, run_id, as_json)
 
 
-@run_group.command("delete")
-@click.argument("run_id", type=int)
-@click.pass_context
-def run_delete(ctx, run_id):
-    """Delete a run (soft; `run restore` brings it back). Example: scaleup run delete 12"""
-    with _campaign(ctx) as c:
-        c.delete_run(run_id)
-    click.echo(f"deleted run {run_id} (restore with `scaleup run restore {run_id}`)")
-
-
-@run_group.command("restore")
-@click.argument("run_id", type=int)
-@click.pass_context
-def run_restore(ctx, run_id):
-    """Restore a deleted run. Example: scaleup run restore 12"""
-    with _campaign(ctx) as c:
-        c.restore_run(run_id)
-    click.echo(f"restored run {run_id}")
-
-
 @run_group.command("history")
 @click.argument("run_id", type=int)
 @json_option
@@ -528,3 +468,32 @@ def run_history(ctx, run_id, as_json):
 from scaleup.commands.kla import run_analyse_command  # noqa: E402  (defined with the kla commands)
 
 run_group.add_command(run_analyse_command)
+
+
+def add_delete_and_restore(group: click.Group, noun: str, example: str,
+                           argument: click.Argument) -> None:
+    """Give a record group its soft `delete` and its `restore` (Campaign.delete_<noun>,
+    Campaign.restore_<noun>)."""
+
+    @group.command("delete", help=f"Delete a {noun} (soft; `{noun} restore` brings it back). "
+                                  f"Example: scaleup {noun} delete {example}")
+    @argument
+    @click.pass_context
+    def delete(ctx, key):
+        with _campaign(ctx) as c:
+            getattr(c, f"delete_{noun}")(key)
+        click.echo(f"deleted {noun} {key} (restore with `scaleup {noun} restore {key}`)")
+
+    @group.command("restore", help=f"Restore a deleted {noun}. "
+                                   f"Example: scaleup {noun} restore {example}")
+    @argument
+    @click.pass_context
+    def restore(ctx, key):
+        with _campaign(ctx) as c:
+            getattr(c, f"restore_{noun}")(key)
+        click.echo(f"restored {noun} {key}")
+
+
+add_delete_and_restore(vessel_group, "vessel", "V-1", click.argument("key", metavar="VESSEL"))
+add_delete_and_restore(medium_group, "medium", "water", click.argument("key", metavar="MEDIUM"))
+add_delete_and_restore(run_group, "run", "12", click.argument("key", type=int, metavar="RUN_ID"))
