@@ -91,7 +91,7 @@ class WorkbenchApp(App):
     TITLE = "scaleup"
     CSS_PATH = Path(__file__).with_name("scaleup.tcss")
     ENABLE_COMMAND_PALETTE = True
-    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (110, "-wide"), (170, "-huge")]
+    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (130, "-wide"), (170, "-huge")]
     MODES = {place.mode: _factory(place) for place in PLACES}
     DEFAULT_MODE = "runs"
     BINDINGS = [
