@@ -79,6 +79,10 @@ def read_inputs(texts: dict[str, str]) -> tuple[dict, dict[str, str]]:
     return values, problems
 
 
+# "4.68e-04" needs 8 columns; the regime column (None) is the one that gives way
+_MIN_WIDTH = {"rule": 11, "P/V": 8, "regime": None}
+
+
 def rules_table(results: dict) -> Table:
     table = Table(box=None, padding=(0, 1), header_style="bold", show_edge=False)
     heads = [("rule", "", "left"), ("N", "rpm", "right"), ("Qg", "Nm3/h", "right"),
@@ -88,8 +92,7 @@ def rules_table(results: dict) -> Table:
         # numbers keep their width (a cut number reads as another number); the regime
         # words are the ones shortened on a narrow terminal
         table.add_column(f"{name}\n{unit}", justify=justify, no_wrap=True,
-                         min_width=11 if name == "rule" else (None if name == "regime"
-                                                              else max(len(unit), 8)),
+                         min_width=_MIN_WIDTH.get(name, max(len(unit), 5)),
                          overflow="ellipsis")
     for r in results["rules"]:
         if r.get("speed_rps") is None:
