@@ -301,9 +301,9 @@ def test_public_functions_document_every_parameter_with_a_unit(name, func):
 
 def _reference_window_iteration(t, c, tau, lo=0.2, hi=0.98):
     """The window iteration written out plainly, one curve at a time with the plain fit
-    engine: a rough fit on every n // 300-th sample, then fit, locate the window of the fit,
+    engine: a rough fit on every n // 150-th sample, then fit, locate the window of the fit,
     refit from there, until the window stays put (six fits at most, the last one kept)."""
-    every = max(1, t.size // 300)
+    every = max(1, t.size // 150)
     rough = expfit.fit_batch(t[None, ::every], c[None, ::every],
                              np.ones((1, t[::every].size), bool), tau)
     k = float(rough.kla_per_s[0])

@@ -354,11 +354,13 @@ def _analyse_block(curves: list, taus: list[float], lo: float, hi: float, method
 def _nonlinear_fits(batch, tau, nl, lo: float, hi: float) -> list[tuple]:
     """(CurveFit or None, (reason, code) or None, warnings, lag bias) per row."""
     f = nl.fit
+    flagged = _may_warn(f, tau, nl, hi).tolist()
     columns = [a.tolist() for a in (nl.status, f.kla_per_s, f.kla_stderr_per_s, nl.ci_half,
                                      f.c_inf, f.c_inf_stderr, f.c0, f.c0_stderr, batch.start,
                                      tau, f.n_points, nl.rmse, nl.r_squared,
                                      nl.durbin_watson, nl.last_fraction, nl.bias,
                                      nl.stop - nl.first)]
+    covariances = list(f.cov)
     out = []
     for j, (status, k, se, half, c_inf, c_inf_se, c0, c0_se, start, tau_j, n, rmse, r2, dw,
             last, bias, size) in enumerate(zip(*columns, strict=True)):
@@ -376,9 +378,20 @@ def _nonlinear_fits(batch, tau, nl, lo: float, hi: float) -> list[tuple]:
         bias = None if bias != bias else bias  # nan: not computed
         fit = CurveFit("nonlinear", k, se, (k - half, k + half), c_inf, c_inf_se, c0, c0_se,
                        start, (float(times[0]), float(times[-1])), tau_j, n, rmse, r2, dw,
-                       times, nl.residuals[j], f.cov[j])
-        out.append((fit, None, _fit_warnings(fit, bias, last, hi), bias))
+                       times, nl.residuals[j], covariances[j])
+        out.append((fit, None, _fit_warnings(fit, bias, last, hi) if flagged[j] else [], bias))
     return out
+
+
+def _may_warn(f, tau: np.ndarray, nl, hi: float) -> np.ndarray:
+    """Rows for which :func:`_fit_warnings` may find something to say (a superset: the
+    tests here are its own, with a margin), so that the others skip it."""
+    k, se = f.kla_per_s, f.kla_stderr_per_s
+    with np.errstate(invalid="ignore"):
+        return ~((se <= 0.25 * k) & (nl.last_fraction >= min(hi, 0.9))
+                 & ~(nl.durbin_watson < 1.0)
+                 & ~(np.abs(nl.bias) > LAG_BIAS_WARNING)
+                 & ~((tau > 0) & (k * tau > 0.5)))
 
 
 def _log_linear_results(batch, lo: float, hi: float, stars: list):

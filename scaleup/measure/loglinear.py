@@ -77,8 +77,14 @@ def _levels(c: np.ndarray, start: np.ndarray, length: np.ndarray
     q = np.maximum(5, n_use // 20)
     head = np.minimum(q, n_use)
     tail = np.maximum(length - q, start)
-    first, first_spread = row_means(c, start, head)
-    last, last_spread = row_means(c, tail, length - tail)
+    if (start == start[0]).all() and (length == c.shape[1]).all():  # column slices will do
+        a, h, z = int(start[0]), int(head[0]), int(tail[0])
+        first, last = c[:, a:a + h].mean(1), c[:, z:].mean(1)
+        first_spread = np.ptp(c[:, a:a + h], axis=1)
+        last_spread = np.ptp(c[:, z:], axis=1)
+    else:
+        first, first_spread = row_means(c, start, head)
+        last, last_spread = row_means(c, tail, length - tail)
     scale = np.maximum(np.abs(first), np.abs(last))
     alike = np.minimum(first_spread, last_spread) <= 1e-9 * scale
     for i in np.flatnonzero(alike):
@@ -175,7 +181,9 @@ def _log_linear_part(t, c, batch, part, c_inf, sign, low, high, first, rise, lo,
     if origin.any():
         tt -= np.repeat(origin, counts)
     # the deficit as (C_inf - C) / sign(rise)
-    d = (np.repeat(c_inf, counts) - c.reshape(-1)[at]) * np.repeat(sign, counts)
+    gap = np.repeat(c_inf, counts)
+    gap -= c.reshape(-1)[at]
+    d = gap * np.repeat(sign, counts)
     y = np.log(d)
     n = counts.astype(float)
     st, sy = _segment_sums(tt, offsets, counts), _segment_sums(y, offsets, counts)
@@ -184,12 +192,16 @@ def _log_linear_part(t, c, batch, part, c_inf, sign, low, high, first, rise, lo,
         sxx = stt - st * st / n
         slope = (sty - st * sy / n) / sxx
         icpt = (sy - slope * st) / n
-        resid = y - np.repeat(icpt, counts) - np.repeat(slope, counts) * tt
+        resid = np.repeat(slope, counts)
+        resid *= tt
+        np.subtract(y, resid, out=resid)
+        resid -= np.repeat(icpt, counts)
         s2 = _segment_sums(resid * resid, offsets, counts) / (n - 2)
         se = np.sqrt(s2 / sxx)
-    # C - (C_inf - sign exp(icpt + slope t)) = sign (exp(y - resid) - d)
+    # C - (C_inf - sign exp(icpt + slope t)) = sign d expm1(-resid) = (C_inf - C) expm1(-resid)
     with np.errstate(over="ignore", invalid="ignore"):
-        model_resid = np.repeat(sign, counts) * d * np.expm1(-resid)
+        model_resid = np.expm1(np.negative(resid, out=resid), out=resid)
+        model_resid *= gap
     ssr = _segment_sums(model_resid * model_resid, offsets, counts)
     with np.errstate(invalid="ignore", divide="ignore"):
         spread = d - np.repeat(_segment_sums(d, offsets, counts) / n, counts)

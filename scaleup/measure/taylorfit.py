@@ -48,13 +48,22 @@ class Source:
     noise-free curve) instead of read."""
 
     def __init__(self, t: np.ndarray, c: np.ndarray | None, start: np.ndarray,
-                 data: Callable[[np.ndarray, np.ndarray], np.ndarray] | None = None):
+                 data: Callable[[np.ndarray, np.ndarray], np.ndarray] | None = None,
+                 span: tuple[np.ndarray, np.ndarray] | None = None):
         self.t, self.c, self.start, self.data = t, c, start, data
+        # ``span``: each row's first sample at or after its start and its length, where
+        # known; a crop within them for all its rows has no time to clamp (before the start
+        # or in the padding)
+        self.span = span
 
     def crop(self, rows: np.ndarray, a: int, b: int) -> tuple[np.ndarray, np.ndarray]:
         t = self.t[rows, a:b]  # a gathered copy, worked on in place
-        t -= self.start[rows, None]
-        np.maximum(t, 0.0, out=t)
+        origin = self.start[rows]
+        if origin.any():
+            t -= origin[:, None]
+        if (self.span is None or (self.span[0][rows] > a).any()
+                or (self.span[1][rows] < b).any()):
+            np.maximum(t, 0.0, out=t)
         c = self.c[rows, a:b] if self.data is None else self.data(rows, t)
         return t, c
 

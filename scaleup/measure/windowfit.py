@@ -24,7 +24,10 @@ from scaleup.measure.loglinear import t975
 
 _MAX_FITS = 6  # fits per curve (each on the window of the one before); the last is kept
 _REACH = 8  # samples either side of a window edge looked at first when it moves
-_ROUGH_SAMPLES = 300  # samples per curve for the first, rough fit
+_ROUGH_SAMPLES = 150  # samples per curve for the first, rough fit
+# the rough fit only places the first window: kLa to 1e-6 relative is well inside the radius
+# of the moment series (taylorfit.RADIUS) about it
+_ROUGH_RTOL = 1e-6
 
 
 @dataclass(eq=False)
@@ -89,7 +92,7 @@ def _search_near(t, origin, pos, lo, hi, target, right: bool, near) -> np.ndarra
 
 
 def _rough(batch: Batch, tau: np.ndarray) -> varpro.BatchFit:
-    """A first fit of every row on about 300 of its samples after the start."""
+    """A first fit of every row on about 150 of its samples after the start."""
     every = np.maximum(1, batch.length // _ROUGH_SAMPLES)
     width = int(np.max(-(-batch.length // every)))
     if (every == every[0]).all():  # one stride for all: a strided view, not a gather
@@ -104,14 +107,15 @@ def _rough(batch: Batch, tau: np.ndarray) -> varpro.BatchFit:
     usable = (cols >= batch.first[:, None]) & (cols < batch.length[:, None])
     whole = usable.all(1)
     if whole.all() or not whole.any():
-        return expfit._fit_rows(t, c, usable, tau)  # the batch holds finite samples only
+        return expfit._fit_rows(t, c, usable, tau, rtol=_ROUGH_RTOL)  # finite samples only
     # rows that use every sample take the engine's unmasked path, the others the masked one
     out = varpro.BatchFit(*(np.empty((t.shape[0],) + (3, 3) * (name == "cov"),
                                      int if name in ("n_points", "iterations") else
                                      bool if name == "converged" else float)
                             for name in varpro.BatchFit.__dataclass_fields__))
     for rows in (np.flatnonzero(whole), np.flatnonzero(~whole)):
-        _assign(out, rows, expfit._fit_rows(t[rows], c[rows], usable[rows], tau[rows]))
+        _assign(out, rows, expfit._fit_rows(t[rows], c[rows], usable[rows], tau[rows],
+                                             rtol=_ROUGH_RTOL))
     return out
 
 
@@ -229,13 +233,9 @@ class _Finish:
         t, c = source.crop(rows, a, b)
         first, stop = ex.first[rows] - a, ex.stop[rows] - a
         at = np.arange(rows.size)
-        resid = expfit.row_response(t, fit.kla_per_s[rows], tau[rows])
-        self.last[rows] = 1.0 - resid[at, stop - 1]
-        c_inf, c0 = fit.c_inf[rows], fit.c0[rows]
-        # C - (C_inf - (C_inf - C0) g), in place
-        np.multiply(resid, (c_inf - c0)[:, None], out=resid)
-        np.subtract(c_inf[:, None], resid, out=resid)
-        np.subtract(c, resid, out=resid)
+        k, tau_r = fit.kla_per_s[rows], tau[rows]
+        self.last[rows] = 1.0 - expfit.row_response(t[at, stop - 1][:, None], k, tau_r)[:, 0]
+        resid = _residuals(t, c, k, tau_r, fit.c_inf[rows], fit.c0[rows])
         w = b - a
         cols = np.arange(w)
         np.copyto(resid, 0.0, where=(cols < first[:, None]) | (cols >= stop[:, None]))
@@ -251,12 +251,40 @@ class _Finish:
             self.r2[rows] = np.where(sst > 0, 1.0 - ssr / sst, np.nan)
             self.dw[rows] = np.where(
                 ssr > 0, (np.einsum("ij,ij->i", steps, steps) - jumps) / ssr, np.nan)
-        origin = source.start[rows]
-        if origin.any():
-            t += origin[:, None]
         for i, row in enumerate(rows.tolist()):
-            self.times[row] = t[i, first[i]:stop[i]]
+            self.times[row] = source.t[row, a + first[i]:a + stop[i]]  # on the data's clock
             self.residuals[row] = resid[i, first[i]:stop[i]]
+
+
+def _residuals(t, c, k, tau, c_inf, c0) -> np.ndarray:
+    """C - (C_inf - (C_inf - C0) g) on rows of times ``t`` (overwritten) and readings ``c``.
+
+    Away from k tau_p = 1 the lagged g is p e^{-kt} - q e^{-t/tau_p} (textbook form, as in
+    :func:`scaleup.measure.expfit.row_response`), summed here term by term into one array.
+    """
+    rise = c_inf - c0
+    with np.errstate(divide="ignore"):
+        b = np.where(tau > 0, 1.0 / np.where(tau > 0, tau, 1.0), np.inf)
+    direct = (tau > 0) & (np.abs(1.0 - k * tau) >= expfit._NEAR_SINGULAR)
+    if not (direct.all() or (tau <= 0).all()):
+        g = expfit.row_response(t, k, tau)
+        np.multiply(g, rise[:, None], out=g)
+        np.subtract(c_inf[:, None], g, out=g)
+        return np.subtract(c, g, out=g)
+    out = np.multiply(t, -k[:, None])
+    np.exp(out, out=out)
+    if direct.all():  # (C - C_inf) + rise (p e - q f), p = b/(b - k), q = k/(b - k)
+        d = b - k
+        out *= (rise * b / d)[:, None]
+        np.multiply(t, -b[:, None], out=t)
+        np.exp(t, out=t)
+        t *= (rise * k / d)[:, None]
+        out -= t
+    else:  # ideal probe: g = e
+        out *= rise[:, None]
+    out += c
+    out -= c_inf[:, None]
+    return out
 
 
 def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -> WindowFits:
@@ -278,7 +306,7 @@ def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -
 
     Notes
     -----
-    The rough fit uses every n // 300-th sample of a row of n; a row whose rough fit does
+    The rough fit uses every n // 150-th sample of a row of n; a row whose rough fit does
     not converge, or whose window holds fewer than five samples, gives no estimate.
     """
     m = batch.length.size
@@ -289,7 +317,7 @@ def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -
     windows = _Windows(batch, tau, fractions)
     first, stop = windows.locate(np.arange(m), k)
     status[(status == 0) & (stop - first < MIN_POINTS)] = 1
-    source = taylorfit.Source(batch.t, batch.c, batch.start)
+    source = taylorfit.Source(batch.t, batch.c, batch.start, span=(batch.first, batch.length))
     ex = taylorfit.Expansion(source, tau, first, stop)
 
     def follow(rows, k_best):
