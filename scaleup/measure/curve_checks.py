@@ -9,11 +9,14 @@ time going back, too short, flat or nearly so) to :func:`prepare`, one by one.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from concurrent.futures import Executor
 from dataclasses import dataclass
+from functools import partial
 
 import numpy as np
 
 from scaleup.errors import InputError
+from scaleup.measure import lanes
 from scaleup.measure.curve_start import detect_start, detect_starts, end_levels, noise_level
 
 MIN_POINTS = 5  # three parameters (kLa, C_inf, C0) plus two degrees of freedom for an error
@@ -163,7 +166,8 @@ def row_means(c: np.ndarray, begin: np.ndarray, count: np.ndarray
     return mean, values.max(1) - values.min(1)
 
 
-def _clearly_rising(c: np.ndarray, length: np.ndarray) -> np.ndarray:
+def _clearly_rising(c: np.ndarray, length: np.ndarray, pool: Executor | None = None
+                    ) -> np.ndarray:
     """Rows whose change from the first to the last samples is certainly more than five
     times their noise (:func:`noise_level`), so that :func:`prepare` would pass them.
 
@@ -189,14 +193,17 @@ def _clearly_rising(c: np.ndarray, length: np.ndarray) -> np.ndarray:
     counted = np.minimum(span, length - 2)
     square = np.empty(length.size)
     block = max(1, _BLOCK // span)
-    for a in range(0, length.size, block):
-        b = min(a + block, length.size)
+
+    def sum_squares(a: int, b: int) -> None:
         second = np.multiply(c[a:b, 1:span + 1], 2.0)
         np.subtract(c[a:b, 2:span + 2], second, out=second)
         second += c[a:b, :span]
         if (counted[a:b] < span).any():
             second *= np.arange(span) < counted[a:b, None]
         square[a:b] = np.einsum("ij,ij->i", second, second)
+
+    lanes.share(pool, [partial(sum_squares, a, min(a + block, length.size))
+                       for a in range(0, length.size, block)])
     with np.errstate(divide="ignore", invalid="ignore"):
         reach = square / (below * below)
     return (change > 1e-9 * scale) & (counted - reach > half)
@@ -214,8 +221,8 @@ def _search_rows(t: np.ndarray, length: np.ndarray, value: np.ndarray) -> np.nda
     return lo
 
 
-def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
-                  ) -> tuple[Batch | None, list[Rejected | None]]:
+def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence,
+                  pool: Executor | None = None) -> tuple[Batch | None, list[Rejected | None]]:
     """Check many curves and find their starts, as :func:`prepare` does for one.
 
     Parameters
@@ -226,6 +233,8 @@ def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
         Gas-on time [s] of each curve, or None to detect it.
     stars : sequence
         Saturation concentration [unit of the curve] of each, or None.
+    pool : Executor, optional
+        A thread pool whose free thread takes some of the blocks of rows.
 
     Returns
     -------
@@ -241,10 +250,10 @@ def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
     total = len(ts)
     length = np.array([t.size for t in ts], int)
     width = int(length.max()) if total else 0
-    t_all, c_all, simple, low, high = _gather(ts, cs, length, width)
+    t_all, c_all, simple, low, high = _gather(ts, cs, length, width, pool)
     simple &= length >= MIN_POINTS
     if simple.all():
-        simple = _clearly_rising(c_all, length)
+        simple = _clearly_rising(c_all, length, pool)
     elif simple.any():
         rows = np.flatnonzero(simple)
         simple[rows] = _clearly_rising(c_all[rows], length[rows])
@@ -295,7 +304,8 @@ def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence
                  warnings=[warnings[i] for i in index]), rejected
 
 
-def _gather(ts: list, cs: list, length: np.ndarray, width: int) -> tuple:
+def _gather(ts: list, cs: list, length: np.ndarray, width: int,
+            pool: Executor | None = None) -> tuple:
     """The curves as two padded arrays (times [s], readings), and per row whether its
     samples are finite with times increasing, and its smallest and largest padded time
     step [s].
@@ -313,8 +323,8 @@ def _gather(ts: list, cs: list, length: np.ndarray, width: int) -> tuple:
     good = np.zeros(total, bool)
     low, high = np.full(total, np.inf), np.full(total, -np.inf)
     block = max(1, _BLOCK // max(width, 1))
-    for a in range(0, total, block):
-        b = min(a + block, total)
+
+    def check(a: int, b: int) -> None:
         t, c = t_all[a:b], c_all[a:b]
         if even:
             np.stack(ts[a:b], out=t)
@@ -323,11 +333,17 @@ def _gather(ts: list, cs: list, length: np.ndarray, width: int) -> tuple:
             good[a:b] = np.isfinite(np.einsum("ij,ij->i", t, c))
         if width > 1:
             steps = np.diff(t, axis=1)
-            down = steps <= 0
-            at = np.argmax(down, axis=1)
-            good[a:b] &= ~(down[np.arange(b - a), at] & (at < length[a:b] - 1))
             steps.min(1, out=low[a:b])
             steps.max(1, out=high[a:b])
+            if even:  # every step lies inside its row: times increase when the least does
+                good[a:b] &= low[a:b] > 0
+            else:
+                down = steps <= 0
+                at = np.argmax(down, axis=1)
+                good[a:b] &= ~(down[np.arange(b - a), at] & (at < length[a:b] - 1))
+
+    lanes.share(pool, [partial(check, a, min(a + block, total))
+                       for a in range(0, total, block)])
     return t_all, c_all, good, low, high
 
 

@@ -80,7 +80,10 @@ class CurveRejected(InputError):
         super().__init__(reason, "curve")
 
 
-@dataclass(frozen=True, eq=False)
+# CurveFit and CurveAnalysis are read-only by convention, not frozen: a frozen dataclass
+# sets each field through object.__setattr__, which made building the results of a large
+# batch cost more than several of its passes over the samples
+@dataclass(eq=False)
 class CurveFit:
     """One method's estimate from one curve.
 
@@ -110,7 +113,7 @@ class CurveFit:
     covariance: np.ndarray | None = field(default=None, repr=False)
 
 
-@dataclass(frozen=True, eq=False)
+@dataclass(eq=False)
 class CurveAnalysis:
     """Both methods on one curve; ``primary`` is the one asked for.
 
@@ -270,7 +273,7 @@ def analyse_curves(curves: Sequence[tuple[np.ndarray, np.ndarray]], *,
     # the log-linear fits of a large batch run on a second core, when there is one, beside
     # the nonlinear ones
     many = sum(len(t) for t, _ in curves) > _THREAD_SAMPLES
-    pool = ThreadPoolExecutor(max_workers=1) if many and (os.cpu_count() or 1) > 1 else None
+    pool = ThreadPoolExecutor(max_workers=2) if many and (os.cpu_count() or 1) > 1 else None
     try:
         first = 0
         while first < total:
@@ -318,7 +321,7 @@ def _analyse_block(curves: list, taus: list[float], lo: float, hi: float, method
                    ) -> list[CurveAnalysis | Rejected]:
     # wild data overflow on the way to a rejection; every estimate is checked before use
     with np.errstate(all="ignore"):
-        batch, rejected = prepare_batch(curves, starts, stars)
+        batch, rejected = prepare_batch(curves, starts, stars, pool)
         results: list[CurveAnalysis | Rejected] = list(rejected)
         if batch is None:
             return results
@@ -328,7 +331,7 @@ def _analyse_block(curves: list, taus: list[float], lo: float, hi: float, method
             loglin, loglins = _log_linear_results(batch, lo, hi, block_stars)
         else:
             job = pool.submit(_log_linear_results, batch, lo, hi, block_stars)
-        fits = _nonlinear_fits(batch, tau, fit_windows(batch, tau, (lo, hi)), lo, hi)
+        fits = _nonlinear_fits(batch, tau, fit_windows(batch, tau, (lo, hi), pool), lo, hi)
         if pool is not None:
             loglin, loglins = job.result()
     for j, i in enumerate(batch.index.tolist()):

@@ -112,34 +112,45 @@ def time_at_fraction(kla: np.ndarray, tau_p: np.ndarray, fraction: float) -> np.
                              fraction)
 
 
-def _time_at_fraction(a: np.ndarray, tau: np.ndarray, fraction: float,
+def _time_at_fraction(a: np.ndarray, tau: np.ndarray, fraction: float | np.ndarray,
                       guess: np.ndarray | None = None) -> np.ndarray:
     """:func:`time_at_fraction`, Newton's method started from ``guess`` where given (a root
     nearby, e.g. for a kLa a little different): from below the root the first step lands
-    beyond it, and from there the iterates fall onto it as from the union bound."""
-    if not 0.0 < fraction < 1.0:
-        return np.full(a.shape, 0.0 if fraction <= 0 else np.inf)
-    log_target = np.log1p(-fraction)
+    beyond it, and from there the iterates fall onto it as from the union bound.
+    ``fraction`` may also be an array, one fraction per row."""
+    frac = np.asarray(fraction, dtype=float)
+    edge = None
+    if frac.ndim == 0:
+        if not 0.0 < frac < 1.0:
+            return np.full(a.shape, 0.0 if frac <= 0 else np.inf)
+    else:
+        edge = ~((frac > 0.0) & (frac < 1.0))
+        if edge.any():
+            frac = np.where(edge, 0.5, frac)
+    log_target = np.log1p(-frac)
     out = -log_target / a
     lag = tau > 0
-    if not lag.any():
-        return out
-    a, b = a[lag], 1.0 / tau[lag]
-    s, f = np.minimum(a, b), np.maximum(a, b)
-    t = (1.0 / a + 1.0 / b) * np.log(2.0 / (1.0 - fraction))
-    if guess is not None:
-        t = np.where(np.isfinite(guess[lag]) & (guess[lag] > 0), guess[lag], t)
-    for _ in range(60):
-        x = (f - s) * t
-        with np.errstate(divide="ignore", invalid="ignore"):
-            phi = np.where(x > 1e-12, -np.expm1(-x) / x, 1.0 - x / 2)
-        inner = f * t * phi + np.exp(-x)  # g = exp(-s t) * inner
-        # Newton on ln g - ln(1 - f), with d(ln g)/dt = -a b t phi / inner
-        step = -(-s * t + np.log(inner) - log_target) * inner / (a * b * t * phi)
-        t = t - step
-        if (np.abs(step) <= 1e-12 * t).all():
-            break
-    out[lag] = t
+    if lag.any():
+        if frac.ndim:
+            frac, log_target = frac[lag], log_target[lag]
+        a, b = a[lag], 1.0 / tau[lag]
+        s, f = np.minimum(a, b), np.maximum(a, b)
+        t = (1.0 / a + 1.0 / b) * np.log(2.0 / (1.0 - frac))
+        if guess is not None:
+            t = np.where(np.isfinite(guess[lag]) & (guess[lag] > 0), guess[lag], t)
+        for _ in range(60):
+            x = (f - s) * t
+            with np.errstate(divide="ignore", invalid="ignore"):
+                phi = np.where(x > 1e-12, -np.expm1(-x) / x, 1.0 - x / 2)
+            inner = f * t * phi + np.exp(-x)  # g = exp(-s t) * inner
+            # Newton on ln g - ln(1 - f), with d(ln g)/dt = -a b t phi / inner
+            step = -(-s * t + np.log(inner) - log_target) * inner / (a * b * t * phi)
+            t = t - step
+            if (np.abs(step) <= 1e-12 * t).all():
+                break
+        out[lag] = t
+    if edge is not None and edge.any():
+        out[edge] = np.where(np.asarray(fraction)[edge] <= 0, 0.0, np.inf)
     return out
 
 

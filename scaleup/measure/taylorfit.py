@@ -21,10 +21,11 @@ rows there are left to the plain engine (:func:`scaleup.measure.expfit.fit_batch
 from __future__ import annotations
 
 from collections.abc import Callable
+from functools import partial
 
 import numpy as np
 
-from scaleup.measure import expfit, varpro
+from scaleup.measure import expfit, lanes, varpro
 
 ORDER = 7  # highest power of u kept
 _POWERS = ORDER + 3  # s^0 ... s^(ORDER + 2): t and t^2 weights need two more
@@ -39,7 +40,7 @@ _FACTORIAL = np.cumprod(np.r_[1.0, np.arange(1.0, ORDER + 1)])
 _SERIES = [(0, 0, 1), (0, 1, 1), (1, 0, 2), (1, 1, 2), (1, 2, 2), (2, 0, 1), (2, 1, 1),
            (3, 0, 1), (3, 1, 1)]
 _GATHER = np.array([[q * _POWERS + p + n for n in range(ORDER + 1)] for q, p, _ in _SERIES])
-_DOUBLE = np.array([two == 2 for _, _, two in _SERIES])
+_SCALE = np.array([[float(two) ** n for n in range(ORDER + 1)] for _, _, two in _SERIES])
 
 
 class Source:
@@ -57,7 +58,14 @@ class Source:
         self.span = span
 
     def crop(self, rows: np.ndarray, a: int, b: int) -> tuple[np.ndarray, np.ndarray]:
+        return self.crop_grid(rows, a, b, False)[:2]
+
+    def crop_grid(self, rows: np.ndarray, a: int, b: int, check: bool
+                  ) -> tuple[np.ndarray, np.ndarray, bool]:
+        """:meth:`crop`, and (when ``check``) whether the rows' own times over the columns
+        are all the same (one logger's grid, whatever each row's start)."""
         t = self.t[rows, a:b]  # a gathered copy, worked on in place
+        same = check and bool((t == t[0]).all())
         origin = self.start[rows]
         if origin.any():
             t -= origin[:, None]
@@ -65,7 +73,7 @@ class Source:
                 or (self.span[1][rows] < b).any()):
             np.maximum(t, 0.0, out=t)
         c = self.c[rows, a:b] if self.data is None else self.data(rows, t)
-        return t, c
+        return t, c, same
 
     def samples(self, rows: np.ndarray, cols: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         t = np.maximum(self.t[rows, cols] - self.start[rows], 0.0)
@@ -121,26 +129,29 @@ class Expansion:
         self.n = (stop - first).astype(float)
         self.s_c, self.s_cc, self.f1, self.f2, self.fc = (np.zeros(m) for _ in range(5))
         self.moments = np.zeros((m, 4, _POWERS))
+        self.pool = None  # a thread pool to share expansions with (lanes.share)
 
     def expand(self, rows: np.ndarray, k0: np.ndarray, fresh: bool) -> None:
         """Take the moments of ``rows`` about ``k0`` on their windows; ``fresh`` rows also get
         their centring, shift and fixed sums (their data summing to zero about the shift, up
         to rounding, as in the plain engine)."""
         self.k0[rows] = k0
-        for part, a, b in chunks(self.first, self.stop, rows):
-            self._expand(part, a, b, fresh)
+        lanes.share(self.pool, [partial(self._expand, part, a, b, fresh)
+                                for part, a, b in chunks(self.first, self.stop, rows)])
 
     def _expand(self, rows, a, b, fresh):
-        t, c = self.source.crop(rows, a, b)
+        # rows sampled on one grid (a logger's usual export) share one set of powers of the
+        # time on that grid, centred on the chunk's span (each row's centre is the same
+        # instant on its own clock); the others are centred each on its own window
+        t, c, shared = self.source.crop_grid(rows, a, b, fresh)
         r, w = t.shape
         first, stop = self.first[rows] - a, self.stop[rows] - a
-        # rows sampled on one grid (a logger's usual export) share one set of powers,
-        # centred on the chunk's span; the others are centred each on its own window
-        shared = fresh and bool((t == t[0]).all())
         at = np.arange(r)
         if shared:
-            lo, hi = t[0, first.min()], t[0, stop.max() - 1]
-            self.tc[rows], self.h[rows] = 0.5 * (lo + hi), max(0.5 * (hi - lo), 1e-300)
+            grid = self.source.t[rows[0], a:b]
+            lo, hi = grid[first.min()], grid[stop.max() - 1]
+            centre, half = 0.5 * (lo + hi), max(0.5 * (hi - lo), 1e-300)
+            self.tc[rows], self.h[rows] = centre - self.source.start[rows], half
         elif fresh:
             self.tc[rows] = 0.5 * (t[at, first] + t[at, stop - 1])
             self.h[rows] = np.maximum(0.5 * (t[at, stop - 1] - t[at, first]), 1e-300)
@@ -171,7 +182,7 @@ class Expansion:
         if shared:
             powers = np.empty((_POWERS, w))
             powers[0] = 1.0
-            powers[1] = (t[0] - self.tc[rows[0]]) / self.h[rows[0]]
+            powers[1] = (grid - centre) / half
             for j in range(2, _POWERS):
                 np.multiply(powers[j - 1], powers[1], out=powers[j])
             np.multiply(t, -self.k0[rows, None], out=t)
@@ -201,12 +212,10 @@ class Expansion:
         d = k - self.k0[rows]
         tc, h = self.tc[rows], self.h[rows]
         u = -d * h
-        powers = np.cumprod(np.column_stack([np.ones(rows.size)] + [u] * ORDER), axis=1)
-        coef = powers / _FACTORIAL
-        double = coef * 2.0 ** np.arange(ORDER + 1)
-        moments = self.moments[rows].reshape(rows.size, -1)[:, _GATHER]
-        terms = np.where(_DOUBLE[None, :, None], double[:, None, :], coef[:, None, :])
-        a0, a1, b0, b1, b2, c0, c1, x0, x1 = np.einsum("rjn,rjn->jr", terms, moments)
+        coef = np.vander(u, ORDER + 1, increasing=True) / _FACTORIAL  # u^n / n!
+        moments = self.moments.reshape(-1, 4 * _POWERS)[rows[:, None, None], _GATHER]
+        moments *= _SCALE  # 2^n in the series of exp(-2kt)
+        a0, a1, b0, b1, b2, c0, c1, x0, x1 = np.einsum("rjn,rn->jr", moments, coef)
         scale = np.exp(-d * tc)
         scale2 = scale * scale
         e1, t1 = scale * a0, scale * (tc * a0 + h * a1)
@@ -253,10 +262,18 @@ class Expansion:
                              ("fc", sf * c)):
             getattr(self, name)[rows] += np.bincount(who, weights=values, minlength=rows.size)
         x = (t - self.tc[row]) / self.h[row]
-        powers = np.cumprod(np.column_stack([np.ones(x.size)] + [x] * (_POWERS - 1)), axis=1)
+        powers = np.vander(x, _POWERS, increasing=True)
         se = s * e
         base = np.column_stack([se, se * e, se * f, se * c])
-        np.add.at(self.moments, row, base[:, :, None] * powers[:, None, :])
+        terms = (base[:, :, None] * powers[:, None, :]).reshape(x.size, 4 * _POWERS)
+        # the samples come segment by segment (each row's low edge, then each row's high
+        # edge): one sum per segment, and a row's two segments added to its moments
+        if x.size:
+            offsets = np.cumsum(size) - size
+            per_segment = np.add.reduceat(terms, np.minimum(offsets, x.size - 1), axis=0)
+            per_segment[size == 0] = 0.0
+            change = per_segment[:rows.size] + per_segment[rows.size:]
+            self.moments[rows] += change.reshape(rows.size, 4, _POWERS)
         self.n[rows] = stop - first
         self.first[rows], self.stop[rows] = first, stop
 

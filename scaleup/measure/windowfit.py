@@ -13,11 +13,13 @@ little more than its rows' windows.
 
 from __future__ import annotations
 
+from concurrent.futures import Executor
 from dataclasses import dataclass
+from functools import partial
 
 import numpy as np
 
-from scaleup.measure import expfit, taylorfit, varpro
+from scaleup.measure import expfit, lanes, taylorfit, varpro
 from scaleup.measure.curve_checks import MIN_POINTS, Batch
 from scaleup.measure.lagbias import lag_bias_batch
 from scaleup.measure.loglinear import t975
@@ -54,9 +56,10 @@ class WindowFits:
     residuals: list
 
 
-def _search(t, origin, pos, lo, hi, target, right: bool) -> np.ndarray:
+def _search(t, origin, pos, lo, hi, target, right) -> np.ndarray:
     """Per row ``pos`` of ``t`` (less ``origin``): the first column in [lo, hi) with
-    t >= target (t > target when ``right``), else hi; each row increases from lo to hi."""
+    t >= target (t > target where ``right``, a bool or one per row), else hi; each row
+    increases from lo to hi."""
     lo, hi = lo.copy(), hi.copy()
     last = t.shape[1] - 1
     while True:
@@ -65,19 +68,20 @@ def _search(t, origin, pos, lo, hi, target, right: bool) -> np.ndarray:
             return lo
         mid = (lo + hi) // 2
         value = t[pos, np.minimum(mid, last)] - origin
-        up = open_ & ((value <= target) if right else (value < target))
+        up = open_ & ((value < target) | (right & (value == target)))
         lo = np.where(up, mid + 1, lo)
         hi = np.where(open_ & ~up, mid, hi)
 
 
-def _search_near(t, origin, pos, lo, hi, target, right: bool, near) -> np.ndarray:
+def _search_near(t, origin, pos, lo, hi, target, right, near) -> np.ndarray:
     """:func:`_search`, looking first at the columns around ``near`` (a window edge moves by
     a sample or two when kLa is refined), and over the whole range where the answer is not
     among them."""
     cols = near[:, None] + np.arange(-_REACH, _REACH)
     inside = (cols >= lo[:, None]) & (cols < hi[:, None])
     value = t[pos[:, None], np.clip(cols, 0, t.shape[1] - 1)] - origin[:, None]
-    below = inside & ((value <= target[:, None]) if right else (value < target[:, None]))
+    goal = target[:, None]
+    below = inside & ((value < goal) | (np.asarray(right)[..., None] & (value == goal)))
     count = below.sum(1)
     # the answer is among these columns when the first is below the target (or before lo)
     # and the last is not (or at or past hi)
@@ -87,7 +91,7 @@ def _search_near(t, origin, pos, lo, hi, target, right: bool, near) -> np.ndarra
     if not sure.all():
         other = ~sure
         found[other] = _search(t, origin[other], pos[other], lo[other], hi[other],
-                               target[other], right)
+                               target[other], right if np.ndim(right) == 0 else right[other])
     return found
 
 
@@ -142,27 +146,29 @@ class _Windows:
         """Windows [first, stop) of kLa ``k`` (batch sample indices), searched first around
         the windows ``near`` = (first, stop) where given."""
         b = self.batch
-        tau = self.tau[rows]
-        lo, hi, origin = b.first[rows], b.length[rows], b.start[rows]
-        t_lo = expfit._time_at_fraction(k, tau, self.fractions[0], self.t_lo[rows])
-        t_hi = expfit._time_at_fraction(k, tau, self.fractions[1], self.t_hi[rows])
-        self.t_lo[rows], self.t_hi[rows], self.k_at[rows] = t_lo, t_hi, k
+        r = rows.size
+        # both edges at once: the low fraction's first, then the high fraction's
+        pos = np.concatenate([rows, rows])
+        lo, hi, origin = (np.concatenate([x, x]) for x in
+                          (b.first[rows], b.length[rows], b.start[rows]))
+        times = expfit._time_at_fraction(
+            np.concatenate([k, k]), np.concatenate([self.tau[rows]] * 2),
+            np.repeat(np.asarray(self.fractions, float), r),
+            np.concatenate([self.t_lo[rows], self.t_hi[rows]]))
+        self.t_lo[rows], self.t_hi[rows], self.k_at[rows] = times[:r], times[r:], k
+        right = np.repeat([False, True], r)  # first: t >= t_lo; stop: t > t_hi
         if near is None:
-            first = _search(b.t, origin, rows, lo, hi, t_lo, False)
-            stop = _search(b.t, origin, rows, lo, hi, t_hi, True)
+            found = _search(b.t, origin, pos, lo, hi, times, right)
         else:
-            first = _search_near(b.t, origin, rows, lo, hi, t_lo, False, near[0])
-            stop = _search_near(b.t, origin, rows, lo, hi, t_hi, True, near[1])
-        last = b.t.shape[1] - 1
-
-        def time(col, valid, outside):
-            value = b.t[rows, np.clip(col, 0, last)] - origin
-            return np.where(valid, value, outside)
-
-        self.gaps[:, rows] = (time(first - 1, first > lo, -np.inf),
-                              time(first, first < hi, np.inf),
-                              time(stop - 1, stop > lo, -np.inf),
-                              time(stop, stop < hi, np.inf))
+            found = _search_near(b.t, origin, pos, lo, hi, times, right,
+                                 np.concatenate(near))
+        first, stop = found[:r], found[r:]
+        # the times of the samples either side of each edge (infinite past the ends)
+        cols = np.concatenate([first - 1, first, stop - 1, stop])
+        valid = np.concatenate([first > lo[:r], first < hi[:r], stop > lo[:r], stop < hi[:r]])
+        value = b.t[np.tile(rows, 4), np.clip(cols, 0, b.t.shape[1] - 1)] - np.tile(origin[:r], 4)
+        outside = np.repeat([-np.inf, np.inf, -np.inf, np.inf], r)
+        self.gaps[:, rows] = np.where(valid, value, outside).reshape(4, r)
         return first, stop
 
     def follow(self, rows, k, first, stop, status) -> tuple:
@@ -287,7 +293,8 @@ def _residuals(t, c, k, tau, c_inf, c0) -> np.ndarray:
     return out
 
 
-def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -> WindowFits:
+def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float],
+                pool: Executor | None = None) -> WindowFits:
     """Fit every row of ``batch`` on the window ``fractions`` of its own fitted rise.
 
     Parameters
@@ -298,6 +305,8 @@ def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -
         Probe time constant of each row [s].
     fractions : (float, float)
         Low and high fraction of the rise [-] bounding the window.
+    pool : Executor, optional
+        A thread pool whose free thread takes some of the passes over the samples.
 
     Returns
     -------
@@ -319,6 +328,7 @@ def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -
     status[(status == 0) & (stop - first < MIN_POINTS)] = 1
     source = taylorfit.Source(batch.t, batch.c, batch.start, span=(batch.first, batch.length))
     ex = taylorfit.Expansion(source, tau, first, stop)
+    ex.pool = pool
 
     def follow(rows, k_best):
         return windows.follow(rows, k_best, ex.first[rows], ex.stop[rows], status)
@@ -336,8 +346,8 @@ def fit_windows(batch: Batch, tau: np.ndarray, fractions: tuple[float, float]) -
     status[(status == 0) & ~(fit.converged & np.isfinite(k) & (k > 0))] = 2
     good = np.flatnonzero(status == 0)
     done = _Finish(m)
-    for rows, a, b in taylorfit.chunks(first, stop, good):
-        done.chunk(source, rows, a, b, fit, ex, tau)
+    lanes.share(pool, [partial(done.chunk, source, rows, a, b, fit, ex, tau)
+                       for rows, a, b in taylorfit.chunks(first, stop, good)])
     bias = np.full(m, np.nan)
     lagged = good[(tau[good] > 0) & (stop[good] - first[good] >= 4)]
     if lagged.size:
