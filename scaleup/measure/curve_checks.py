@@ -285,9 +285,9 @@ def prepare_batch(curves: Sequence, starts: Sequence, stars: Sequence,
     if (~given).any():
         found = rows[~given]
         if found.size == total:
-            start[:] = detect_starts(t_all, c_all, length)
+            start[:] = detect_starts(t_all, c_all, length, pool)
         else:
-            start[found] = detect_starts(t_all[found], c_all[found], length[found])
+            start[found] = detect_starts(t_all[found], c_all[found], length[found], pool)
         detected[found] = True
     first = _search_rows(t_all, length, start)
     for i in rows[length[rows] - first[rows] < MIN_POINTS]:

@@ -7,7 +7,14 @@ once.
 
 from __future__ import annotations
 
+from concurrent.futures import Executor
+from functools import partial
+
 import numpy as np
+
+from scaleup.measure import lanes
+
+_BLOCK = 100_000  # samples per block of rows: the second differences stay in cache
 
 
 def noise_level(c: np.ndarray) -> float:
@@ -109,7 +116,8 @@ def detect_start(t_s: np.ndarray, c: np.ndarray) -> float:
     return float(t[i])
 
 
-def detect_starts(t_s: np.ndarray, c: np.ndarray, length: np.ndarray) -> np.ndarray:
+def detect_starts(t_s: np.ndarray, c: np.ndarray, length: np.ndarray,
+                  pool: Executor | None = None) -> np.ndarray:
     """:func:`detect_start` for each row of a padded batch.
 
     Parameters
@@ -120,6 +128,8 @@ def detect_starts(t_s: np.ndarray, c: np.ndarray, length: np.ndarray) -> np.ndar
         DO readings [any unit].
     length : int array (m,)
         Samples in each row [-].
+    pool : Executor, optional
+        A thread pool whose free thread takes some of the blocks of rows.
 
     Returns
     -------
@@ -132,13 +142,13 @@ def detect_starts(t_s: np.ndarray, c: np.ndarray, length: np.ndarray) -> np.ndar
         if rows.size < 4 or size < 8:
             out[rows] = [detect_start(t_s[i, :size], c[i, :size]) for i in rows]
         elif rows.size == length.size:
-            out[:] = _detect_rows(t_s[:, :size], c[:, :size])
+            out[:] = _detect_rows(t_s[:, :size], c[:, :size], pool)
         else:
-            out[rows] = _detect_rows(t_s[rows, :size], c[rows, :size])
+            out[rows] = _detect_rows(t_s[rows, :size], c[rows, :size], pool)
     return out
 
 
-def _detect_rows(t: np.ndarray, y: np.ndarray) -> np.ndarray:
+def _detect_rows(t: np.ndarray, y: np.ndarray, pool: Executor | None = None) -> np.ndarray:
     """:func:`detect_start` on rows of equal length, with the same result.
 
     The noise enters only through thresholds that rise with it, and the start index does
@@ -155,17 +165,20 @@ def _detect_rows(t: np.ndarray, y: np.ndarray) -> np.ndarray:
         y = np.where(falling[:, None], -y, y)
         change = np.abs(change)
     width = max(1, min(25, n // 50)) | 1
-    d2 = np.multiply(y[:, 1:-1], 2.0)
-    np.subtract(y[:, 2:], d2, out=d2)
-    d2 += y[:, :-2]
-    np.abs(d2, out=d2)
-    half = d2.shape[1] // 2
-    sub = d2[:, ::8].copy()
-    sub.partition(sub.shape[1] // 2, axis=1)
-    guess = sub[:, sub.shape[1] // 2]
+    half = (n - 2) // 2
+    guess, bracketed = np.empty(m), np.empty(m, bool)
+
+    def bracket(a: int, b: int) -> None:  # a block of rows at a time, while it is in cache
+        d2 = _second_differences(y[a:b])
+        sub = d2[:, ::8].copy()
+        sub.partition(sub.shape[1] // 2, axis=1)
+        g = guess[a:b] = sub[:, sub.shape[1] // 2]
+        bracketed[a:b] = ((np.count_nonzero(d2 < 0.9 * g[:, None], axis=1) <= half)
+                          & (np.count_nonzero(d2 <= 1.1 * g[:, None], axis=1) > half))
+
+    block = max(1, _BLOCK // n)
+    lanes.share(pool, [partial(bracket, a, min(a + block, m)) for a in range(0, m, block)])
     low, high = 0.9 * guess, 1.1 * guess
-    bracketed = ((np.count_nonzero(d2 < low[:, None], axis=1) <= half)
-                 & (np.count_nonzero(d2 <= high[:, None], axis=1) > half))
     scale = 1.4826 / np.sqrt(6.0) / np.sqrt(width)  # noise of the smoothed signal per median
     levels = _Levels(y, base=y[:, :width].mean(1), change=change, width=width)
     at_low = levels.start_index(low * scale)
@@ -175,11 +188,19 @@ def _detect_rows(t: np.ndarray, y: np.ndarray) -> np.ndarray:
     out = np.where(at_low >= 0, t[np.arange(m), np.maximum(at_low, 0)], t[:, 0])
     if not sure.all():
         rows = np.flatnonzero(~sure)
-        exact = d2[rows]
+        exact = _second_differences(y[rows])
         exact.partition(half, axis=1)
         index = levels.start_index(exact[:, half] * scale, rows)
         out[rows] = np.where(index >= 0, t[rows, np.maximum(index, 0)], t[rows, 0])
     return out
+
+
+def _second_differences(y: np.ndarray) -> np.ndarray:
+    """|y[i+2] - 2 y[i+1] + y[i]| along each row."""
+    d2 = np.multiply(y[:, 1:-1], 2.0)
+    np.subtract(y[:, 2:], d2, out=d2)
+    d2 += y[:, :-2]
+    return np.abs(d2, out=d2)
 
 
 class _Levels:
@@ -208,18 +229,21 @@ class _Levels:
         out = np.full(rows.size, -1)
         todo = np.arange(rows.size)
         block = min(n, 512)
+        every = rows.size == self.y.shape[0] and (rows == np.arange(rows.size)).all()
         while todo.size:
             r = rows[todo]
-            smooth = self._smoothed(block)[r]
+            whole = every and todo.size == rows.size  # all rows in order: no gathered copy
+            smooth = self._smoothed(block) if whole else self._smoothed(block)[r]
             base, change, nz = self.base[r], self.change[r], noise[todo]
             above = smooth > (base + np.maximum(0.1 * change, 5 * nz))[:, None]
             seen = above.any(1)
             if seen.any():
                 cols = np.arange(block)
                 s_rows = r[seen]
-                rise = np.argmax(above[seen], axis=1)
-                flat = ((smooth[seen] <= (base[seen] + np.maximum(0.005 * change[seen],
-                                                                  3 * nz[seen]))[:, None])
+                every_seen = bool(seen.all())  # then no boolean-indexed copies
+                rise = np.argmax(above if every_seen else above[seen], axis=1)
+                flat = (((smooth if every_seen else smooth[seen])
+                         <= (base[seen] + np.maximum(0.005 * change[seen], 3 * nz[seen]))[:, None])
                         & (cols < rise[:, None]))
                 last_flat = block - 1 - np.argmax(flat[:, ::-1], axis=1)
                 found = flat.any(1) & (last_flat >= self.width)
@@ -227,7 +251,8 @@ class _Levels:
                                                 3 * nz[seen] * np.sqrt(self.width))
                 # the average leaves the level up to width/2 samples early: step on along
                 # the data
-                ahead = (((self.y[s_rows, :block] > level[:, None]) | (cols >= rise[:, None]))
+                data = self.y[:, :block] if whole and every_seen else self.y[s_rows, :block]
+                ahead = (((data > level[:, None]) | (cols >= rise[:, None]))
                          & (cols > last_flat[:, None]))
                 out[todo[seen]] = np.where(found, np.argmax(ahead, axis=1) - 1, -1)
             if block == n:

@@ -15,6 +15,8 @@ import numpy as np
 
 from scaleup.measure.curve_checks import row_means
 
+_PART_SAMPLES = 400_000  # samples of the batch gathered at a time
+
 
 def t975(dof: np.ndarray) -> np.ndarray:
     """Two-sided 95 % Student t quantile.
@@ -138,7 +140,7 @@ def log_linear_batch(batch, lo: float, hi: float, stars: list) -> LogLinearFits:
                                                  "dw")}
     times: list = []
     residuals: list = []
-    rows_per_part = max(1, 400_000 // max(width, 1))
+    rows_per_part = max(1, _PART_SAMPLES // max(width, 1))
     for i0 in range(0, m, rows_per_part):
         part = slice(i0, min(i0 + rows_per_part, m))
         _log_linear_part(t[part], c[part], batch, part, c_inf[part], sign[part], low[part],

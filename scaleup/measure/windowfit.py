@@ -257,9 +257,11 @@ class _Finish:
             self.r2[rows] = np.where(sst > 0, 1.0 - ssr / sst, np.nan)
             self.dw[rows] = np.where(
                 ssr > 0, (np.einsum("ij,ij->i", steps, steps) - jumps) / ssr, np.nan)
-        for i, row in enumerate(rows.tolist()):
-            self.times[row] = source.t[row, a + first[i]:a + stop[i]]  # on the data's clock
-            self.residuals[row] = resid[i, first[i]:stop[i]]
+        grid = source.t
+        for i, (row, f, s) in enumerate(zip(rows.tolist(), first.tolist(), stop.tolist(),
+                                            strict=True)):
+            self.times[row] = grid[row, a + f:a + s]  # on the data's clock
+            self.residuals[row] = resid[i, f:s]
 
 
 def _residuals(t, c, k, tau, c_inf, c0) -> np.ndarray:
