@@ -58,6 +58,8 @@ class Source:
         self.span = span
 
     def crop(self, rows: np.ndarray, a: int, b: int) -> tuple[np.ndarray, np.ndarray]:
+        """Times since each row's start [s] (clamped at 0) and readings of ``rows`` over the
+        columns [a, b); the times are a copy, free to be worked on in place."""
         return self.crop_grid(rows, a, b, False)[:2]
 
     def crop_grid(self, rows: np.ndarray, a: int, b: int, check: bool
