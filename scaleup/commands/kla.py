@@ -114,7 +114,9 @@ def _print_curve(p: dict) -> None:
         rows.append((other.replace("_kla_per_s", "").replace("_", "-") + " kLa",
                      f"{sig(p[other] * per_h)} 1/h"))
     if p["lag_bias"] is not None:
-        rows.append(("uncorrected-fit bias", f"{100 * p['lag_bias']:+.1f} %"))
+        bias = p["lag_bias"]
+        rows.append(("uncorrected-fit bias", f"{100 * bias:+.1f} %" if abs(bias) >= 0.0005
+                     else "under 0.1 %"))
     if "kla_20_per_s" in p:
         rows.append(("kLa at 20 degC (theta 1.024)", f"{sig(p['kla_20_per_s'] * per_h)} 1/h"))
     print_pairs(rows, title="Gassing-out curve")

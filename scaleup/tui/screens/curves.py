@@ -43,7 +43,10 @@ def describe(analysis, unit: str) -> Text:
         else "probe lag off (ideal probe)"
     text.append(f"{analysis.method} fit · {probe}")
     if analysis.lag_bias is not None and fit.tau_p_s:
-        text.append(f" · without it kLa would be {analysis.lag_bias:+.1%}")
+        bias = analysis.lag_bias
+        text.append(" · without it kLa would be " + (
+            f"{abs(bias):.1%} {'low' if bias < 0 else 'high'}" if abs(bias) >= 0.0005
+            else "the same to 0.1 %"))
     text.append(f"\nR² {fit.r_squared:.4f} · rmse {fmt.lab(fit.rmse, 'fraction', digits=3)} "
                 f"{unit} · Durbin-Watson {fit.durbin_watson:.2f}")
     other = analysis.log_linear if analysis.method == "nonlinear" else analysis.nonlinear
