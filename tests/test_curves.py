@@ -436,3 +436,19 @@ def test_gaps_and_a_detected_start_give_the_result_of_the_curve_without_the_gaps
     assert with_gaps["start_detected"] and with_gaps["start_s"] == without["start_s"]
     assert with_gaps["kla_per_s"] == pytest.approx(without["kla_per_s"], rel=1e-12)
     assert with_gaps["warnings"][0].startswith("30 samples with a missing time or value")
+
+
+def test_a_curve_keeps_its_log_linear_fit_beside_one_that_gets_none():
+    # the second curve's C* lies far above its data, so no sample falls in its log-linear
+    # window; the sums of the curve before it once lost their last sample to that
+    rng = np.random.default_rng(2)
+    t = np.linspace(0.0, 300.0, 301)
+    a = 95.0 - 90.0 * np.exp(-0.03 * t) + rng.normal(0.0, 0.3, t.size)
+    b = 95.0 - 90.0 * np.exp(-0.02 * t) + rng.normal(0.0, 0.3, t.size)
+    both = analyse_curves([(t, a), (t, b)], start_s=0.0, c_star=[None, 1000.0])
+    alone = analyse_curves([(t, a)], start_s=0.0)[0]
+    assert both[1].log_linear is None
+    assert any("only 0 samples" in w for w in both[1].warnings)
+    assert both[0].log_linear.kla_per_s == alone.log_linear.kla_per_s
+    assert both[0].log_linear.n_points == alone.log_linear.n_points
+    assert both[0].log_linear.r_squared == alone.log_linear.r_squared

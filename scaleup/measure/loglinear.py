@@ -14,6 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from scaleup.measure.curve_checks import row_means
+from scaleup.measure.segments import segment_sums as _segment_sums
 
 _PART_SAMPLES = 400_000  # samples of the batch gathered at a time
 
@@ -56,14 +57,6 @@ class LogLinearFits:
     durbin_watson: np.ndarray
     times: list
     residuals: list
-
-
-def _segment_sums(values: np.ndarray, offsets: np.ndarray, counts: np.ndarray) -> np.ndarray:
-    """Sum of each run of ``values`` (runs start at ``offsets`` and hold ``counts``)."""
-    if values.size == 0:
-        return np.zeros(counts.size)
-    sums = np.add.reduceat(values, np.minimum(offsets, values.size - 1))
-    return np.where(counts > 0, sums, 0.0)
 
 
 def _levels(c: np.ndarray, start: np.ndarray, length: np.ndarray

@@ -26,6 +26,7 @@ from functools import partial
 import numpy as np
 
 from scaleup.measure import expfit, lanes, varpro
+from scaleup.measure.segments import segment_sums
 
 ORDER = 7  # highest power of u kept
 _POWERS = ORDER + 3  # s^0 ... s^(ORDER + 2): t and t^2 weights need two more
@@ -270,12 +271,9 @@ class Expansion:
         terms = (base[:, :, None] * powers[:, None, :]).reshape(x.size, 4 * _POWERS)
         # the samples come segment by segment (each row's low edge, then each row's high
         # edge): one sum per segment, and a row's two segments added to its moments
-        if x.size:
-            offsets = np.cumsum(size) - size
-            per_segment = np.add.reduceat(terms, np.minimum(offsets, x.size - 1), axis=0)
-            per_segment[size == 0] = 0.0
-            change = per_segment[:rows.size] + per_segment[rows.size:]
-            self.moments[rows] += change.reshape(rows.size, 4, _POWERS)
+        per_segment = segment_sums(terms, np.cumsum(size) - size, size)
+        change = per_segment[:rows.size] + per_segment[rows.size:]
+        self.moments[rows] += change.reshape(rows.size, 4, _POWERS)
         self.n[rows] = stop - first
         self.first[rows], self.stop[rows] = first, stop
 
