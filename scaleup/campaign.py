@@ -93,9 +93,13 @@ class Campaign(EquipmentService, RunService, MeasurementService, AnalysisService
                 old = json.loads(last["old_json"])
                 replaced = [t for t, (parent, _) in records.CHILDREN.items()
                             if parent == table and t in old]
+                current = records.get(self.conn, table, record_id)
+                # blobs (curve samples) are not in the log; entries written before they were
+                # left out hold them as null, which is not their old value either
                 editable = {k: v for k, v in old.items()
                             if k not in ("id", "row_version", "created_at", "updated_at",
-                                         "deleted_at", *records.CHILDREN)}
+                                         "deleted_at", *records.CHILDREN)
+                            and not (v is None and isinstance(current.get(k), bytes))}
                 if replaced:  # impellers, sparger or salts were replaced: put the old back
                     child = replaced[0]
                     key = records.CHILDREN[child][1]

@@ -203,3 +203,62 @@ def test_insert_many_audits_each_record_as_stored(campaign):
     with pytest.raises(InputError, match="speed_rps"):
         records.insert_many(campaign.conn, "run", [base, {**base, "speed_rps": -1.0}])
     assert campaign.summary() == before
+
+
+def test_update_many_changes_and_audits_as_update_does(campaign):
+    import json
+
+    ids = [add_run(campaign, speed=f"{400 + 50 * i} rpm") for i in range(4)]
+    twin = [add_run(campaign, speed=f"{400 + 50 * i} rpm") for i in range(4)]
+    changes = {ids[0]: {"speed_rps": 9.0}, ids[1]: {"notes": "baffles checked"},
+               ids[2]: {"speed_rps": records.get(campaign.conn, "run", ids[2])["speed_rps"]},
+               ids[3]: {"speed_rps": 7.0, "temperature_k": 310.0}}
+    now = records.update_many(campaign.conn, "run", changes, actor="lab")
+    for run_id, other in zip(ids, twin, strict=True):
+        records.update(campaign.conn, "run", other, changes[run_id], actor="lab")
+    for run_id, other in zip(ids, twin, strict=True):
+        a, b = (records.get(campaign.conn, "run", i) for i in (run_id, other))
+        assert now[run_id] == a
+        assert {k: v for k, v in a.items() if k not in ("id", "created_at", "updated_at",
+                                                         "run_at", "ref")} == \
+            {k: v for k, v in b.items() if k not in ("id", "created_at", "updated_at",
+                                                      "run_at", "ref")}
+        logs = [campaign.history("run", i) for i in (run_id, other)]
+        assert [h["action"] for h in logs[0]] == [h["action"] for h in logs[1]]
+        if logs[0][0]["action"] == "update":
+            old, new = json.loads(logs[0][0]["old_json"]), json.loads(logs[0][0]["new_json"])
+            assert new == a and new["row_version"] == old["row_version"] + 1
+    assert [h["action"] for h in campaign.history("run", ids[2])] == ["insert"]  # no change
+    # a deleted record or a bad value refuses the whole batch, and nothing is written
+    before = [records.get(campaign.conn, "run", i) for i in ids]
+    with pytest.raises(InputError, match="speed_rps"):
+        records.update_many(campaign.conn, "run", {ids[0]: {"speed_rps": 1.0},
+                                                    ids[1]: {"speed_rps": -1.0}})
+    campaign.delete_run(twin[0])
+    with pytest.raises(NotFound, match="deleted"):
+        records.update_many(campaign.conn, "run", {ids[0]: {"speed_rps": 1.0},
+                                                    twin[0]: {"speed_rps": 2.0}})
+    assert [records.get(campaign.conn, "run", i) for i in ids] == before
+
+
+def test_undo_puts_back_a_curve_analysis_and_keeps_the_samples(demo_path, tmp_path):
+    import shutil
+
+    path = tmp_path / "copy.db"
+    shutil.copy(demo_path, path)
+    with Campaign(path) as c:
+        curve_id = c.rows("SELECT id FROM curve WHERE deleted_at IS NULL LIMIT 1")[0]["id"]
+        c.analyse_curves([curve_id], tau_p_s=2.0)
+        before = c.curve(curve_id)
+        # the same analysis again leaves the run's kLa as it was, so the newest change is
+        # the curve's (its analysis time); undo must put that back and leave the samples
+        c.analyse_curves([curve_id], tau_p_s=2.0)
+        entry = c.history(limit=1)[0]
+        assert (entry["table_name"], entry["record_id"]) == ("curve", curve_id)
+        assert "time_s" not in entry["old_json"]  # samples are not copied into the log
+        assert c.undo() == {"table": "curve", "record_id": curve_id, "undid": "update"}
+        row = c.curve(curve_id)
+        assert row["analysed_at"] == before["analysed_at"]
+        assert row["kla_per_s"] == before["kla_per_s"]
+        assert (row["do_values"] == before["do_values"]).all()
+        assert (row["time_s"] == before["time_s"]).all()

@@ -106,14 +106,19 @@ class MeasurementService:
             changes.update(chunk_changes)
             del stored
         with self.transaction():
-            for curve_id, values in changes.items():
-                records.update(self.conn, "curve", curve_id, values, actor=self.actor)
-            for run_id in sorted({r["run_id"] for r in chosen}):
-                live = self.rows("SELECT kind, kla_per_s, kla_stderr_per_s FROM curve WHERE "
-                                 "run_id = ? AND deleted_at IS NULL", (run_id,))
-                values = run_kla(live)
-                if values:
-                    records.update(self.conn, "run", run_id, values, actor=self.actor)
+            records.update_many(self.conn, "curve", changes, actor=self.actor)
+            run_ids = sorted({r["run_id"] for r in chosen if r["run_id"] is not None})
+            by_run: dict[int, list[dict]] = {i: [] for i in run_ids}
+            for start in range(0, len(run_ids), 500):
+                part = run_ids[start:start + 500]
+                for row in self.rows(
+                        "SELECT run_id, kind, kla_per_s, kla_stderr_per_s FROM curve WHERE "
+                        f"deleted_at IS NULL AND run_id IN ({', '.join('?' for _ in part)}) "
+                        "ORDER BY run_id, id", part):
+                    by_run[row["run_id"]].append(row)
+            run_changes = {run_id: values for run_id, live in by_run.items()
+                           if (values := run_kla(live))}
+            records.update_many(self.conn, "run", run_changes, actor=self.actor)
         return results
 
     # ---- flux measurements ---------------------------------------------------------------

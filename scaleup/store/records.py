@@ -160,9 +160,18 @@ _ENCODER = json.JSONEncoder(sort_keys=True, default=_no_bytes)
 
 
 def _dump(record: dict | None) -> str | None:
+    """A record as audit JSON, without its blobs (curve samples): they are not copied into
+    the log, and a field left out is one that undo leaves alone."""
     if record is None:
         return None
-    return _ENCODER.encode(record)
+    return _ENCODER.encode({k: v for k, v in record.items() if not isinstance(v, bytes)})
+
+
+def _plain_columns(conn: sqlite3.Connection, table: str) -> str:
+    """The table's columns but its blobs, for reads whose rows go to the audit log."""
+    names = [r[1] for r in conn.execute(f"PRAGMA table_info({_name(table)})")
+             if r[2].upper() != "BLOB"]
+    return ", ".join(_name(n) for n in names)
 
 
 def insert(conn: sqlite3.Connection, table: str, values: dict[str, Any], *,
@@ -205,16 +214,18 @@ def insert_many(conn: sqlite3.Connection, table: str, many: list[dict[str, Any]]
     return ids
 
 
-def _stored(conn: sqlite3.Connection, table: str, ids: list[int]) -> dict[int, dict]:
+def _stored(conn: sqlite3.Connection, table: str, ids: list[int], columns: str = "*"
+            ) -> dict[int, dict]:
     """The stored rows of ``ids`` by id: one range read when they are consecutive (as new
     rows under the write lock are), else in chunks."""
     if ids and max(ids) - min(ids) == len(ids) - 1 and len(set(ids)) == len(ids):
-        found = rows(conn, f"SELECT * FROM {table} WHERE id BETWEEN ? AND ?",
+        found = rows(conn, f"SELECT {columns} FROM {table} WHERE id BETWEEN ? AND ?",
                      (min(ids), max(ids)))
     else:
         chunks = [tuple(ids[start:start + 500]) for start in range(0, len(ids), 500)]
         found = [row for chunk in chunks for row in rows(
-            conn, f"SELECT * FROM {table} WHERE id IN ({', '.join('?' * len(chunk))})", chunk)]
+            conn, f"SELECT {columns} FROM {table} WHERE id IN ({', '.join('?' * len(chunk))})",
+            chunk)]
     return {row["id"]: row for row in found}
 
 
@@ -229,25 +240,77 @@ def update(conn: sqlite3.Connection, table: str, record_id: int, changes: dict[s
         changes = {k: v for k, v in changes.items() if old.get(k) != v}
         if not changes:
             return old
-        sets = ", ".join(f"{_name(c)} = ?" for c in changes)
-        extra = ", row_version = row_version + 1"
-        if "updated_at" in old:
-            extra += ", updated_at = strftime('%Y-%m-%dT%H:%M:%fZ', 'now')"
-        try:
-            cur = conn.execute(
-                f"UPDATE {table} SET {sets}{extra} WHERE id = ? AND row_version = ?",
-                [*changes.values(), record_id, old["row_version"]])
-        except sqlite3.IntegrityError as exc:
-            raise constraint_error(exc, table, changes) from exc
-        except OverflowError:
-            raise _too_large(changes) from None
-        if cur.rowcount != 1:
-            now = get(conn, table, record_id, include_deleted=True)
-            raise ConflictError(conflict_message(table, record_id, now, changes,
-                                                 old["row_version"]))
+        _apply(conn, table, record_id, changes, old["row_version"],
+               _update_sql(table, tuple(changes), "updated_at" in old))
         new = get(conn, table, record_id)
         _audit(conn, table, record_id, "update", old, new, actor)
     return new
+
+
+def update_many(conn: sqlite3.Connection, table: str, changes: dict[int, dict[str, Any]], *,
+                actor: str = "") -> dict[int, dict]:
+    """:func:`update` for many records (``{id: {field: value}}``) in one transaction, each
+    changed record audited as :func:`update` audits it.
+
+    The rows are read before and after in chunks (without their blobs, which the audit log
+    does not keep), one UPDATE runs per record that changes, and the audit rows are written
+    by one ``executemany``: analysing 10,000 stored curves would otherwise spend seconds in
+    five statements per record. Returns the records as they are now, by id (without blobs).
+    """
+    ids = list(changes)
+    columns = _plain_columns(conn, table)
+    statements: dict[tuple[str, ...], str] = {}
+    with transaction(conn):
+        old = _stored(conn, table, ids, columns)
+        for record_id in ids:
+            if record_id not in old or old[record_id].get("deleted_at"):
+                raise NotFound(f"{table} {record_id} does not exist"
+                               + (" (it is deleted; restore it first)" if record_id in old
+                                  else ""))
+        changed = []
+        for record_id in ids:
+            before = old[record_id]
+            diff = {k: v for k, v in changes[record_id].items()
+                    if k not in before or before[k] != v}
+            if not diff:
+                continue
+            names = tuple(diff)
+            sql = statements.get(names)
+            if sql is None:
+                sql = statements[names] = _update_sql(table, names, "updated_at" in before)
+            _apply(conn, table, record_id, diff, before["row_version"], sql)
+            changed.append(record_id)
+        new = _stored(conn, table, changed, columns)
+        conn.executemany(
+            "INSERT INTO audit_log (actor, table_name, record_id, action, old_json, new_json)"
+            " VALUES (?, ?, ?, ?, ?, ?)",
+            [(actor, table, i, "update", _dump(old[i]), _dump(new[i])) for i in changed])
+    return {i: new.get(i, old[i]) for i in ids}
+
+
+def _update_sql(table: str, names: tuple[str, ...], stamped: bool) -> str:
+    """UPDATE of the fields ``names`` of one record at its row version, raising the version
+    (and the update time where the table has one)."""
+    extra = ", row_version = row_version + 1"
+    if stamped:
+        extra += ", updated_at = strftime('%Y-%m-%dT%H:%M:%fZ', 'now')"
+    return (f"UPDATE {_name(table)} SET {', '.join(f'{_name(c)} = ?' for c in names)}{extra}"
+            " WHERE id = ? AND row_version = ?")
+
+
+def _apply(conn: sqlite3.Connection, table: str, record_id: int, changes: dict,
+           version: int, sql: str) -> None:
+    """Run an :func:`_update_sql` statement; a refused value names its field, and a record
+    whose version moved meanwhile is a conflict."""
+    try:
+        cur = conn.execute(sql, [*changes.values(), record_id, version])
+    except sqlite3.IntegrityError as exc:
+        raise constraint_error(exc, table, changes) from exc
+    except OverflowError:
+        raise _too_large(changes) from None
+    if cur.rowcount != 1:
+        now = get(conn, table, record_id, include_deleted=True)
+        raise ConflictError(conflict_message(table, record_id, now, changes, version))
 
 
 def conflict_message(table, record_id, current, changes, expected_version) -> str:
